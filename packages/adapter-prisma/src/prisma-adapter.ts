@@ -1,0 +1,69 @@
+import type { AdapterOptionValues, AssembleInput, AssembleResult, SchemaAdapter } from '@schema-strata/core';
+import { assembleSchema, datasourceInfo, type JoinKeyRule } from './prisma-assemble.js';
+import { PRISMA_OPTIONS } from './prisma-config.js';
+import { locatePrisma, PRISMA_WATCH } from './prisma-locate.js';
+import { modernise, parseWithEngine } from './prisma-parse.js';
+import { scanSchema } from './prisma-scan.js';
+import { ADAPTER_VERSION } from './version.js';
+import { renderPrismaDemo } from './prisma-demo.js';
+
+/**
+ * Build the snapshot of one version from the text of its schema files. The files form one
+ * schema (Prisma parses a multi-file schema as one unit), so a parse error fails the whole
+ * version, which core then marks `carried`.
+ */
+export function assemblePrisma(input: AssembleInput<unknown>, options: AdapterOptionValues): AssembleResult {
+  const files = input.files.map((f) => ({ path: f.path, text: f.text ?? '' }));
+  if (files.every((f) => f.text.trim() === '')) {
+    return {
+      failed: true,
+      diagnostics: files.map((f) => ({ severity: 'error' as const, code: 'prisma/empty-schema', file: f.path, message: `${f.path} is empty` })),
+    };
+  }
+  const blocks = files.flatMap((f) => scanSchema(f.path, f.text));
+  const ds = datasourceInfo(blocks);
+  if (ds.provider === 'mongodb') {
+    return {
+      failed: true,
+      diagnostics: [{
+        severity: 'error', code: 'prisma/mongodb-unsupported', ...(ds.file ? { file: ds.file } : {}), ...(ds.line ? { line: ds.line } : {}),
+        message: 'the datasource provider is mongodb, which has no relational tables; schema-strata analyses relational schemas only',
+      }],
+    };
+  }
+  const parsed = parseWithEngine(files.map((f) => ({ path: f.path, text: modernise(f.text).text })));
+  if (!parsed.ok) return { failed: true, diagnostics: parsed.diagnostics };
+  const { snapshot, diagnostics } = assembleSchema(parsed.datamodel, blocks, {
+    provider: ds.provider ?? 'postgresql',
+    relationMode: ds.relationMode,
+    joinKey: (options['prisma-join-key'] as JoinKeyRule | undefined) ?? 'auto',
+  });
+  if (!ds.provider) {
+    diagnostics.push({ severity: 'info', code: 'prisma/no-datasource', message: 'no datasource block: types follow PostgreSQL' });
+  }
+  return { snapshot, diagnostics };
+}
+
+/**
+ * The Prisma adapter: finds the schema as Prisma's CLI would and parses it with Prisma's own
+ * schema engine (its WebAssembly build), offline, without running any code of the project.
+ *
+ * @example
+ * ```ts
+ * import { extractHistory } from '@schema-strata/core';
+ * import prisma from '@schema-strata/adapter-prisma';
+ *
+ * const history = await extractHistory({ repo: '.', adapter: prisma });
+ * console.log(history.versions.length, 'versions');
+ * ```
+ */
+export const prismaAdapter: SchemaAdapter = Object.freeze({
+  name: 'prisma',
+  version: ADAPTER_VERSION,
+  description: "Prisma schema files (single file, multi-file folders), parsed with Prisma's own engine",
+  options: PRISMA_OPTIONS,
+  watch: PRISMA_WATCH,
+  locate: locatePrisma,
+  assemble: assemblePrisma,
+  renderDemo: renderPrismaDemo,
+});

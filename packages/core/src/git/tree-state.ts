@@ -1,0 +1,85 @@
+import picomatch from 'picomatch';
+import type { TreeView } from '../adapter/api.js';
+import type { BlobReader } from './blob-reader.js';
+import type { RawChange } from './log-pass.js';
+
+/** Regular files only: symbolic links (120000) and submodules (160000) are not schema files. */
+const isRegular = (mode: string): boolean => mode === '100644' || mode === '100755';
+
+/**
+ * The watched part of the tree as it stands after each commit of the walk, kept up to date
+ * from the raw diffs of the log pass (no checkout, no process per commit).
+ */
+export class TreeState {
+  private readonly files = new Map<string, string>();
+  private sorted: string[] | null = null;
+
+  apply(changes: readonly RawChange[]): void {
+    for (const ch of changes) {
+      if (ch.status === 'R') this.files.delete(ch.from);
+      if (ch.status === 'D') {
+        this.files.delete(ch.path);
+        continue;
+      }
+      if (isRegular(ch.newMode)) this.files.set(ch.path, ch.newBlob);
+      else this.files.delete(ch.path);
+    }
+    if (changes.length > 0) this.sorted = null;
+  }
+
+  get(path: string): string | undefined {
+    return this.files.get(path);
+  }
+
+  paths(): string[] {
+    if (!this.sorted) this.sorted = [...this.files.keys()].sort();
+    return this.sorted;
+  }
+
+  view(commit: string, reader: BlobReader): TreeView {
+    const files = this.files;
+    const self = this;
+    return {
+      commit,
+      paths: () => self.paths(),
+      has: (p) => files.has(p),
+      blob: (p) => files.get(p),
+      async read(p) {
+        const b = files.get(p);
+        if (!b) return undefined;
+        const r = await reader.read(b);
+        return r.kind === 'text' ? r.text : undefined;
+      },
+      under(dir) {
+        const prefix = dir === '' || dir === '.' ? '' : dir.replace(/\/+$/, '') + '/';
+        const all = self.paths();
+        // binary search for the first path with the prefix
+        let lo = 0;
+        let hi = all.length;
+        while (lo < hi) {
+          const mid = (lo + hi) >> 1;
+          if (all[mid]! < prefix) lo = mid + 1;
+          else hi = mid;
+        }
+        const out: string[] = [];
+        for (let i = lo; i < all.length && all[i]!.startsWith(prefix); i++) out.push(all[i]!);
+        return out;
+      },
+    };
+  }
+}
+
+/** Whether a user `--path` entry has glob characters (then it is matched, not followed). */
+export function isGlob(p: string): boolean {
+  return picomatch.scan(p).isGlob;
+}
+
+/** Turn picomatch-style globs into git pathspecs (`:(glob)` magic; `**` and `*` mean the same). */
+export function toPathspecs(globs: readonly string[]): string[] {
+  return globs.map((g) => `:(glob)${g}`);
+}
+
+export function matcher(globs: readonly string[]): (path: string) => boolean {
+  if (globs.length === 0) return () => false;
+  return picomatch(globs as string[], { dot: true });
+}

@@ -1,0 +1,66 @@
+import { appendFileSync, existsSync, mkdirSync, readFileSync } from 'node:fs';
+import { homedir } from 'node:os';
+import { join } from 'node:path';
+
+/**
+ * The user's cache directory for schema-strata: `$XDG_CACHE_HOME/schema-strata`, else
+ * `~/.cache/schema-strata` (on macOS `~/Library/Caches/schema-strata`, on Windows
+ * `%LOCALAPPDATA%\schema-strata`).
+ */
+export function defaultCacheDir(): string {
+  if (process.env.XDG_CACHE_HOME) return join(process.env.XDG_CACHE_HOME, 'schema-strata');
+  if (process.platform === 'darwin') return join(homedir(), 'Library', 'Caches', 'schema-strata');
+  if (process.platform === 'win32' && process.env.LOCALAPPDATA) return join(process.env.LOCALAPPDATA, 'schema-strata');
+  return join(homedir(), '.cache', 'schema-strata');
+}
+
+/**
+ * An append-only pack of JSON records, one per line, kept in one file per namespace (adapter
+ * name, adapter version and the hash of the options that change its output). The whole pack
+ * is read once at the start of a run; new records are appended in one write at its end.
+ * A torn or foreign line is skipped, so a crash or two runs appending at once lose at most
+ * the records they were writing.
+ */
+export class RecordPack<R extends { k: string }> {
+  private readonly file: string;
+  private pendingLines: string[] = [];
+  readonly loaded: R[] = [];
+
+  constructor(dir: string, namespace: string) {
+    mkdirSync(dir, { recursive: true });
+    this.file = join(dir, `${namespace}.jsonl`);
+    if (existsSync(this.file)) {
+      const text = readFileSync(this.file, 'utf8');
+      let start = 0;
+      while (start < text.length) {
+        let end = text.indexOf('\n', start);
+        if (end < 0) end = text.length;
+        if (end > start) {
+          try {
+            const rec = JSON.parse(text.slice(start, end)) as R;
+            if (rec && typeof rec.k === 'string') this.loaded.push(rec);
+          } catch {
+            // a torn line: skip it
+          }
+        }
+        start = end + 1;
+      }
+    }
+  }
+
+  add(record: R): void {
+    this.pendingLines.push(JSON.stringify(record));
+  }
+
+  /** Append what was added since the last flush, in one write. */
+  flush(): void {
+    if (this.pendingLines.length === 0) return;
+    // The leading newline ends a line torn by an earlier crash, so that it cannot swallow ours.
+    appendFileSync(this.file, '\n' + this.pendingLines.join('\n') + '\n');
+    this.pendingLines = [];
+  }
+
+  get path(): string {
+    return this.file;
+  }
+}

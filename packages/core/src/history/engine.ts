@@ -1,0 +1,579 @@
+import { createHash } from 'node:crypto';
+import type {
+  AdapterOptionValues,
+  AssembleFile,
+  AssembleResult,
+  FileFacts,
+  Located,
+  SchemaAdapter,
+} from '../adapter/api.js';
+import type { Change } from '../changes/kinds.js';
+import { diffSnapshots } from '../changes/diff-snapshots.js';
+import { BlobReader } from '../git/blob-reader.js';
+import { logPass, type LoggedCommit } from '../git/log-pass.js';
+import { firstParentLine, openRepository, resolveRevisions } from '../git/repository.js';
+import { isGlob, matcher, toPathspecs, TreeState } from '../git/tree-state.js';
+import { canonicalJson } from '../model/canonical.js';
+import type { Diagnostic, Table, ViewRef } from '../model/types.js';
+import { UsageError, EXIT } from '../util/errors.js';
+import { RecordPack } from './disk-cache.js';
+import { pathLineage } from './path-lineage.js';
+import { SnapshotStore, type BuiltSnapshot, type TableOrigins } from './snapshot-store.js';
+import type { Progress } from '../util/progress.js';
+
+export type VersionStatus = 'ok' | 'no change' | 'partial' | 'carried' | 'absent';
+
+export interface FileRef {
+  path: string;
+  blob: string;
+}
+
+export interface VersionRecord {
+  index: number;
+  commit: string;
+  parent: string | null;
+  authorTime: string;
+  committerTime: string;
+  subject: string;
+  files: FileRef[];
+  consulted: FileRef[];
+  status: VersionStatus;
+  /** Storage hash of the snapshot, null when absent. */
+  snapshot: string | null;
+  diagnostics: Diagnostic[];
+  counters: Record<string, number>;
+}
+
+export interface ExtractRequest {
+  repo: string;
+  ref?: string;
+  since?: string;
+  until?: string;
+  /** `--path` entries: files, directories or globs, relative to the repository root. */
+  paths?: string[];
+  adapter: SchemaAdapter;
+  /** How the adapter was named (package name or file), for the interchange file. */
+  adapterSource?: string;
+  adapterOptions?: AdapterOptionValues;
+  /** Cache directory; undefined disables the disk cache. */
+  cacheDir?: string;
+  /** Files larger than this many bytes are not read (a diagnostic instead). */
+  maxFileBytes?: number;
+  progress?: Progress;
+}
+
+export interface RunStats {
+  commitsLogged: number;
+  candidates: number;
+  assembled: number;
+  assembleCacheHits: number;
+  filesParsed: number;
+  fileCacheHits: number;
+  blobsRead: number;
+}
+
+export interface History {
+  repository: string;
+  ref: string;
+  head: string;
+  adapter: { name: string; version: string; source?: string };
+  paths: string[];
+  adapterOptions: Record<string, unknown>;
+  window: { since?: string; until?: string };
+  versions: VersionRecord[];
+  snapshots: Map<string, BuiltSnapshot>;
+  /** Where each stored table was declared, in the first version that had it. */
+  tableOrigins: Map<string, TableOrigins>;
+  changes: Change[];
+  /** Run-level diagnostics (not tied to one version). */
+  diagnostics: Diagnostic[];
+  stats: RunStats;
+}
+
+export const DEFAULT_MAX_FILE_BYTES = 5 * 1024 * 1024;
+
+interface CachedUnit {
+  k: 's';
+  key: string;
+  tables?: string[];
+  origins?: TableOrigins[];
+  views?: ViewRef[];
+  failed?: boolean;
+  d: Diagnostic[];
+  c?: Record<string, number>;
+}
+interface CachedTable {
+  k: 't';
+  h: string;
+  t: Table;
+}
+interface CachedFacts {
+  k: 'f';
+  b: string;
+  r: FileFacts<unknown>;
+}
+type CacheRecord = CachedUnit | CachedTable | CachedFacts;
+
+/** The options that change an adapter's output, in a stable form: part of every cache key. */
+export function outputOptions(adapter: SchemaAdapter, values: AdapterOptionValues): Record<string, unknown> {
+  const out: Record<string, unknown> = {};
+  for (const o of adapter.options ?? []) {
+    if (o.affectsOutput === false) continue;
+    const v = values[o.flag];
+    if (v !== undefined) out[o.flag] = v;
+  }
+  return out;
+}
+
+function normaliseUserPath(p: string): string {
+  return p.replace(/\\/g, '/').replace(/^\.\/+/, '').replace(/\/+$/, '');
+}
+
+/** Candidate version found by the locate pass. */
+interface Candidate {
+  pos: number;
+  commit: LoggedCommit;
+  files: FileRef[];
+  consulted: FileRef[];
+  diagnostics: Diagnostic[];
+}
+
+/**
+ * Rebuild the schema history of a repository: one log pass, one blob reader, the adapter's
+ * locate step at every commit that touches a watched path, then a parse of every distinct
+ * input set (cached), and the changes between consecutive versions.
+ */
+export async function extractHistory(req: ExtractRequest): Promise<History> {
+  const { adapter } = req;
+  const options = req.adapterOptions ?? {};
+  const ref = req.ref ?? 'HEAD';
+  const repo = await openRepository(req.repo, ref);
+  const progress = req.progress;
+  const maxBytes = req.maxFileBytes ?? DEFAULT_MAX_FILE_BYTES;
+
+  // ---- what to watch
+  const userPaths = (req.paths ?? []).map(normaliseUserPath).filter(Boolean);
+  const literal = userPaths.filter((p) => !isGlob(p));
+  const globs = userPaths.filter((p) => isGlob(p));
+  const watch = [...adapter.watch];
+  for (const p of literal) watch.push(p, `${p}/**`);
+  watch.push(...globs);
+  const pathspecs = [...toPathspecs(watch), ':(exclude,glob)**/node_modules/**'];
+
+  // ---- the log pass
+  progress?.phase('reading history');
+  const commits = await logPass(repo.path, repo.head, pathspecs, (n) => progress?.tick(n));
+
+  // ---- the window
+  const window = await resolveWindow(repo.path, repo.head, commits, req.since, req.until);
+
+  // ---- the locate pass
+  const reader = new BlobReader(repo.path, maxBytes);
+  try {
+    const tree = new TreeState();
+    const lineage = literal.length > 0 ? pathLineage(commits, literal) : null;
+    const userMatch = matcher(globs);
+    const candidates: Candidate[] = [];
+    let prevKey = '';
+    const ambiguous = new Map<string, string[]>();
+    let ambiguousHint = '';
+    let unsupported: string | undefined;
+    let searched: string | undefined;
+    progress?.phase('locating the schema', commits.length);
+    for (let i = 0; i < commits.length; i++) {
+      const c = commits[i]!;
+      tree.apply(c.changes);
+      const view = tree.view(c.commit, reader);
+      let located: Located;
+      if (userPaths.length > 0) {
+        const names = lineage ? lineage[i]! : [];
+        const selected = new Set<string>();
+        for (const p of tree.paths()) {
+          if (userMatch(p)) selected.add(p);
+        }
+        for (const n of names) {
+          if (tree.get(n) !== undefined) selected.add(n);
+          for (const p of view.under(n)) selected.add(p);
+        }
+        located = await adapter.locate(view, { paths: [...selected].sort(), options });
+      } else {
+        located = await adapter.locate(view, { options });
+      }
+      if (located.searched) searched = located.searched;
+      if (located.unsupported) unsupported = located.unsupported;
+      if (located.ambiguous) {
+        for (const cand of located.ambiguous.candidates) ambiguous.set(cand.join(', '), cand);
+        ambiguousHint = located.ambiguous.hint;
+      }
+      const files = [...new Set(located.files)].sort().map((p) => ({ path: p, blob: tree.get(p) ?? '' })).filter((f) => f.blob);
+      const key = files.map((f) => `${f.path}\u0000${f.blob}`).join('\u0001');
+      if (key !== prevKey) {
+        const consulted = [...new Set(located.consulted ?? [])]
+          .sort()
+          .map((p) => ({ path: p, blob: tree.get(p) ?? '' }))
+          .filter((f) => f.blob);
+        candidates.push({ pos: i, commit: c, files, consulted, diagnostics: located.diagnostics ?? [] });
+        prevKey = key;
+      }
+      if (i % 256 === 0) progress?.tick(i + 1);
+    }
+    progress?.tick(commits.length);
+
+    if (ambiguous.size > 0) {
+      const list = [...ambiguous.values()].map((c) => c.join(' + ')).join('; ');
+      throw new UsageError(`several independent schemas found (${list}); choose one with ${ambiguousHint || '--path'}`, EXIT.failure);
+    }
+    if (unsupported) {
+      throw new UsageError(unsupported, EXIT.failure);
+    }
+    const anyFound = candidates.some((c) => c.files.length > 0);
+    if (!anyFound) {
+      throw new UsageError(
+        `no ${adapter.name} schema found in the history of ${ref}${searched ? `; searched ${searched}` : ''}` +
+          (userPaths.length > 0 ? ` (--path ${userPaths.join(' ')})` : ''),
+        EXIT.failure,
+      );
+    }
+
+    // ---- cut to the window; leading absences are not versions
+    let inWindow = candidates.filter((c) => c.pos >= window.from && c.pos <= window.to);
+    const firstPresent = inWindow.findIndex((c) => c.files.length > 0);
+    inWindow = firstPresent < 0 ? [] : inWindow.slice(firstPresent);
+    if (inWindow.length === 0) {
+      throw new UsageError(`no version of the ${adapter.name} schema falls in the window given by --since/--until`, EXIT.failure);
+    }
+
+    // ---- build every version
+    const built = await buildVersions(inWindow, {
+      adapter, options, reader, cacheDir: req.cacheDir, progress,
+    });
+    return {
+      repository: req.repo,
+      ref,
+      head: repo.head,
+      adapter: { name: adapter.name, version: adapter.version, ...(req.adapterSource ? { source: req.adapterSource } : {}) },
+      paths: userPaths,
+      adapterOptions: outputOptions(adapter, options),
+      window: { ...(req.since ? { since: req.since } : {}), ...(req.until ? { until: req.until } : {}) },
+      versions: built.versions,
+      snapshots: built.snapshots,
+      tableOrigins: built.tableOrigins,
+      changes: built.changes,
+      diagnostics: built.runDiagnostics,
+      stats: { ...built.stats, commitsLogged: commits.length, candidates: candidates.length, blobsRead: reader.blobsRead },
+    };
+  } finally {
+    reader.close();
+  }
+}
+
+/** Positions (in the log) of the first and last commit inside the --since/--until window. */
+async function resolveWindow(
+  repo: string,
+  head: string,
+  commits: readonly LoggedCommit[],
+  since?: string,
+  until?: string,
+): Promise<{ from: number; to: number }> {
+  let from = 0;
+  let to = commits.length - 1;
+  if (!since && !until) return { from, to };
+  const bounds = [since, until].filter((x): x is string => !!x);
+  const revs = await resolveRevisions(repo, bounds);
+  let line: Map<string, number> | null = null;
+  const posOnLine = async (id: string, label: string): Promise<number> => {
+    if (!line) line = new Map((await firstParentLine(repo, head)).map((c, i) => [c, i]));
+    const p = line.get(id);
+    if (p === undefined) throw new UsageError(`${label} is not on the first-parent line of the analysed ref`, EXIT.usage);
+    return p;
+  };
+  const logPos = async (): Promise<number[]> => {
+    if (!line) line = new Map((await firstParentLine(repo, head)).map((c, i) => [c, i]));
+    return commits.map((c) => line!.get(c.commit) ?? -1);
+  };
+  const asDate = (v: string, flag: string): number => {
+    const t = Date.parse(v);
+    if (Number.isNaN(t)) throw new UsageError(`${flag} ${v}: neither a revision nor a date (use YYYY-MM-DD or a commit, tag or branch)`, EXIT.usage);
+    return t;
+  };
+  if (since) {
+    const id = revs.get(since);
+    if (id) {
+      const p = await posOnLine(id, `--since ${since}`);
+      const lp = await logPos();
+      from = lp.findIndex((x) => x >= p);
+      if (from < 0) from = commits.length;
+    } else {
+      const t = asDate(since, '--since');
+      from = commits.findIndex((c) => Date.parse(c.committerTime) >= t);
+      if (from < 0) from = commits.length;
+    }
+  }
+  if (until) {
+    const id = revs.get(until);
+    if (id) {
+      const p = await posOnLine(id, `--until ${until}`);
+      const lp = await logPos();
+      to = -1;
+      lp.forEach((x, i) => {
+        if (x >= 0 && x <= p) to = i;
+      });
+    } else {
+      // a bare date means the whole of that day
+      const t = asDate(until, '--until') + (/^\d{4}-\d{2}-\d{2}$/.test(until) ? 86_400_000 - 1 : 0);
+      to = -1;
+      commits.forEach((c, i) => {
+        if (Date.parse(c.committerTime) <= t) to = i;
+      });
+    }
+  }
+  return { from, to };
+}
+
+interface BuildContext {
+  adapter: SchemaAdapter;
+  options: AdapterOptionValues;
+  reader: BlobReader;
+  cacheDir?: string;
+  progress?: Progress;
+}
+
+async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
+  const { adapter, options, reader } = ctx;
+  const optionsKey = canonicalJson(outputOptions(adapter, options));
+  const namespace = `${safeName(adapter.name)}-${safeName(adapter.version)}-${hashText(optionsKey).slice(0, 12)}`;
+  const pack = ctx.cacheDir ? new RecordPack<CacheRecord>(ctx.cacheDir, namespace) : null;
+
+  const store = new SnapshotStore();
+  const unitCache = new Map<string, CachedUnit>();
+  const factsCache = new Map<string, FileFacts<unknown>>();
+  const cachedTables = new Map<string, Table>();
+  if (pack) {
+    for (const r of pack.loaded) {
+      if (r.k === 's') unitCache.set(r.key, r);
+      else if (r.k === 't') cachedTables.set(r.h, r.t);
+      else if (r.k === 'f') factsCache.set(r.b, r.r);
+    }
+  }
+  const session = adapter.createSession?.(options);
+  const assemble = (input: Parameters<SchemaAdapter['assemble']>[0]): AssembleResult | Promise<AssembleResult> =>
+    session ? session.assemble(input) : adapter.assemble(input, options);
+
+  const unitTablesKnown = (u: CachedUnit): boolean =>
+    !u.tables || u.tables.every((h) => store.getTable(h) !== undefined || cachedTables.has(h));
+
+  const stats = { assembled: 0, assembleCacheHits: 0, filesParsed: 0, fileCacheHits: 0 };
+  const lastGood = new Map<string, { blob: string; facts: unknown }>();
+  const versions: VersionRecord[] = [];
+  const snapshots = new Map<string, BuiltSnapshot>();
+  const tableOrigins = new Map<string, TableOrigins>();
+  const changes: Change[] = [];
+  const runDiagnostics: Diagnostic[] = [];
+  let lastPresent: BuiltSnapshot | null = null;
+
+  ctx.progress?.phase('rebuilding versions', candidates.length);
+  for (let vi = 0; vi < candidates.length; vi++) {
+    const cand = candidates[vi]!;
+    const c = cand.commit;
+    const diagnostics: Diagnostic[] = [...cand.diagnostics];
+    let status: VersionStatus = 'ok';
+    let snapshot: BuiltSnapshot | null = null;
+    let counters: Record<string, number> = {};
+
+    if (cand.files.length === 0) {
+      status = 'absent';
+      diagnostics.push({ severity: 'warning', code: 'schema/absent', message: 'the schema is not in the tree at this commit' });
+    } else {
+      // ---- read and (per file) parse; a blob is read only when nothing cached covers it
+      const inputs: AssembleFile<unknown>[] = [];
+      const missing: string[] = [];
+      /** Unreadable files of an adapter without parseFile: kept with the cached unit. */
+      const readDiagnostics: Diagnostic[] = [];
+      let stale = false;
+      let key: string;
+      if (!adapter.parseFile) {
+        key = hashText(canonicalJson({ files: cand.files.map((f) => [f.path, f.blob]) }));
+        const hit = unitCache.get(key);
+        if (!hit || !unitTablesKnown(hit)) {
+          for (const f of cand.files) {
+            const got = await reader.read(f.blob);
+            if (got.kind === 'text') {
+              inputs.push({ path: f.path, blob: f.blob, text: got.text });
+              reader.forget(f.blob);
+            } else {
+              readDiagnostics.push(readDiagnostic(f.path, got));
+              missing.push(f.path);
+            }
+          }
+        }
+      } else {
+        for (const f of cand.files) {
+          let result = factsCache.get(f.blob);
+          if (result) stats.fileCacheHits++;
+          else {
+            const got = await reader.read(f.blob);
+            if (got.kind === 'text') {
+              result = await adapter.parseFile({ path: f.path, blob: f.blob, text: got.text }, options);
+              stats.filesParsed++;
+              factsCache.set(f.blob, result);
+              pack?.add({ k: 'f', b: f.blob, r: result });
+              reader.forget(f.blob);
+            } else {
+              diagnostics.push(readDiagnostic(f.path, got));
+            }
+          }
+          if (result) for (const d of result.diagnostics ?? []) diagnostics.push({ ...d, file: d.file ?? f.path });
+          if (result && result.ok) {
+            lastGood.set(f.path, { blob: f.blob, facts: result.facts });
+            inputs.push({ path: f.path, blob: f.blob, facts: result.facts });
+            continue;
+          }
+          stale = true;
+          const lg = lastGood.get(f.path);
+          if (lg) {
+            inputs.push({ path: f.path, blob: f.blob, facts: lg.facts, stale: true });
+            diagnostics.push({
+              severity: 'warning', code: 'file/kept-last-good', file: f.path,
+              message: `${f.path} failed to parse; its last good parse (blob ${lg.blob.slice(0, 10)}) is kept`,
+            });
+          } else {
+            missing.push(f.path);
+            diagnostics.push({
+              severity: 'warning', code: 'file/skipped', file: f.path,
+              message: `${f.path} failed to parse and never parsed before; its effects are left out`,
+            });
+          }
+        }
+        key = hashText(
+          canonicalJson({
+            files: inputs.map((x) => [x.path, x.blob, x.stale ? lastGood.get(x.path)?.blob ?? '' : '']),
+            missing,
+          }),
+        );
+      }
+
+      // ---- assemble (cached by the exact input set)
+      let unit = unitCache.get(key);
+      if (unit && !unitTablesKnown(unit)) unit = undefined;
+      if (unit) {
+        stats.assembleCacheHits++;
+      } else {
+        const result =
+          !adapter.parseFile && missing.length > 0
+            ? ({ failed: true, diagnostics: [] } as AssembleResult)
+            : await assemble({ files: inputs, missing });
+        stats.assembled++;
+        if ('failed' in result) {
+          unit = { k: 's', key, failed: true, d: [...readDiagnostics, ...result.diagnostics] };
+        } else {
+          const made = store.fromInput(result.snapshot);
+          for (const st of made.newTables) {
+            if (!cachedTables.has(st.hash)) {
+              cachedTables.set(st.hash, st.table);
+              pack?.add({ k: 't', h: st.hash, t: st.table });
+            }
+          }
+          unit = {
+            k: 's', key,
+            tables: made.snapshot.tables.map((t) => t.hash),
+            origins: made.origins,
+            views: made.snapshot.views,
+            d: [...readDiagnostics, ...result.diagnostics],
+            ...(result.counters && Object.keys(result.counters).length > 0 ? { c: result.counters } : {}),
+          };
+        }
+        unitCache.set(key, unit);
+        pack?.add(unit);
+      }
+      diagnostics.push(...unit.d);
+      counters = unit.c ?? {};
+      if (unit.failed) {
+        if (lastPresent) {
+          status = 'carried';
+          snapshot = lastPresent;
+          diagnostics.push({ severity: 'warning', code: 'schema/carried', message: 'the schema could not be built; the previous snapshot is kept' });
+        } else {
+          // nothing to carry yet: this commit is not a version (version 0 is the first that builds)
+          runDiagnostics.push(
+            ...diagnostics.map((d) => ({ ...d, message: `${c.commit.slice(0, 10)} (before version 0): ${d.message}` })),
+          );
+          continue;
+        }
+      } else {
+        const tables = unit.tables!.map((h) => store.getTable(h) ?? store.internKnown(h, cachedTables.get(h)!));
+        snapshot = store.assembleSnapshot(tables, unit.views ?? []);
+        const existing = snapshots.get(snapshot.hash);
+        if (existing) snapshot = existing;
+        unit.tables!.forEach((h, i) => {
+          if (!tableOrigins.has(h)) tableOrigins.set(h, unit!.origins?.[i] ?? {});
+        });
+        // every table of this unit now has its first origins; the unit's copy is not needed again
+        delete unit.origins;
+        if (stale) status = 'partial';
+        else if (lastPresent && lastPresent.meaningHash === snapshot.meaningHash) status = 'no change';
+      }
+    }
+
+    const index = versions.length;
+    if (snapshot) {
+      snapshots.set(snapshot.hash, snapshot);
+      if (status !== 'carried' && (lastPresent === null || lastPresent !== snapshot)) {
+        if (lastPresent === null || lastPresent.meaningHash !== snapshot.meaningHash) {
+          changes.push(...diffSnapshots(index, lastPresent, snapshot));
+        }
+      }
+      lastPresent = snapshot;
+    }
+    versions.push({
+      index,
+      commit: c.commit,
+      parent: c.parent,
+      authorTime: c.authorTime,
+      committerTime: c.committerTime,
+      subject: c.subject,
+      files: cand.files,
+      consulted: cand.consulted,
+      status,
+      snapshot: snapshot ? snapshot.hash : null,
+      diagnostics: dedupeDiagnostics(diagnostics),
+      counters,
+    });
+    ctx.progress?.tick(vi + 1);
+  }
+  pack?.flush();
+  return { versions, snapshots, tableOrigins, changes, runDiagnostics, stats };
+}
+
+function readDiagnostic(path: string, got: { kind: string; size?: number }): Diagnostic {
+  switch (got.kind) {
+    case 'too-large':
+      return {
+        severity: 'error', code: 'file/too-large', file: path,
+        message: `${path} has ${got.size} bytes, over the size limit (--max-file-size); not read`,
+      };
+    case 'binary':
+      return { severity: 'error', code: 'file/binary', file: path, message: `${path} is a binary file; not read` };
+    default:
+      return { severity: 'error', code: 'file/missing', file: path, message: `${path}: blob missing from the repository` };
+  }
+}
+
+function dedupeDiagnostics(ds: Diagnostic[]): Diagnostic[] {
+  const seen = new Set<string>();
+  const out: Diagnostic[] = [];
+  for (const d of ds) {
+    const k = canonicalJson(d);
+    if (seen.has(k)) continue;
+    seen.add(k);
+    out.push(d);
+  }
+  return out;
+}
+
+function hashText(s: string): string {
+  return createHash('sha256').update(s).digest('hex');
+}
+
+function safeName(s: string): string {
+  return s.replace(/[^A-Za-z0-9._-]+/g, '_');
+}

@@ -1,0 +1,147 @@
+import { createHash } from 'node:crypto';
+import type { Column, ForeignKey, NeutralType, Snapshot, SnapshotInput, Table, UniqueConstraint, ViewRef } from './types.js';
+import { tableId } from './types.js';
+
+/**
+ * Canonical JSON: object keys sorted, `undefined` left out, arrays kept in order.
+ * The same value always gives the same string, whatever order its keys were set in.
+ */
+export function canonicalJson(value: unknown): string {
+  if (value === null || typeof value !== 'object') {
+    return JSON.stringify(value);
+  }
+  if (Array.isArray(value)) {
+    return `[${value.map((v) => (v === undefined ? 'null' : canonicalJson(v))).join(',')}]`;
+  }
+  const obj = value as Record<string, unknown>;
+  const keys = Object.keys(obj).filter((k) => obj[k] !== undefined).sort();
+  return `{${keys.map((k) => `${JSON.stringify(k)}:${canonicalJson(obj[k])}`).join(',')}}`;
+}
+
+/** A short content hash: the first 24 hex digits of SHA-256. */
+export function contentHash(text: string): string {
+  return createHash('sha256').update(text).digest('hex').slice(0, 24);
+}
+
+const byString = (a: string, b: string): number => (a < b ? -1 : a > b ? 1 : 0);
+
+function fkKey(fk: ForeignKey): string {
+  return `${fk.columns.join('\u0000')}\u0001${fk.referencedTable}\u0001${fk.referencedColumns.join('\u0000')}`;
+}
+
+function uniqueKey(u: UniqueConstraint): string {
+  return u.columns.join('\u0000');
+}
+
+/**
+ * The parts of a column that carry meaning for the database: not where it was found (origin)
+ * and not what the ORM code calls it (a field renamed while its column name stays is no change).
+ */
+export function columnMeaning(c: Column): Omit<Column, 'origin' | 'ormName'> {
+  const { origin: _origin, ormName: _ormName, ...rest } = c;
+  return rest;
+}
+
+/**
+ * The meaning of a table, in canonical form: columns sorted by name, foreign keys by their
+ * columns, uniques by their columns; origins and ORM-level names left out. Two tables with the
+ * same meaning get the same hash even when their columns were declared in another order, at
+ * other lines, or under another class name (design.md: a class renamed while its mapped table
+ * name stays is no change at all).
+ */
+export function tableMeaning(t: Table): unknown {
+  return {
+    id: t.id,
+    name: t.name,
+    namespace: t.namespace,
+    kind: t.kind,
+    columns: [...t.columns].sort((a, b) => byString(a.name, b.name)).map(columnMeaning),
+    primaryKey: t.primaryKey,
+    foreignKeys: [...t.foreignKeys].sort((a, b) => byString(fkKey(a), fkKey(b))),
+    uniques: [...t.uniques].sort((a, b) => byString(uniqueKey(a), uniqueKey(b))),
+  };
+}
+
+export function tableHash(t: Table): string {
+  return contentHash(canonicalJson(tableMeaning(t)));
+}
+
+export function viewMeaning(v: ViewRef): unknown {
+  return { id: v.id, name: v.name, namespace: v.namespace, ormName: v.ormName };
+}
+
+/** Hash of a snapshot from the hashes of its tables and its views. */
+export function snapshotHashOf(tableHashes: string[], views: ViewRef[]): string {
+  return contentHash(canonicalJson({ tables: tableHashes, views: views.map(viewMeaning) }));
+}
+
+/**
+ * Put an adapter's output in canonical order: ids filled in, tables and views sorted by id,
+ * foreign keys and uniques sorted by their columns. Columns keep their declaration order.
+ */
+export function canonicalOrder(input: SnapshotInput): { tables: Table[]; views: ViewRef[] } {
+  const tables: Table[] = input.tables.map((t) => ({
+    ...t,
+    id: t.id ?? tableId(t.name, t.namespace),
+    foreignKeys: [...t.foreignKeys].sort((a, b) => byString(fkKey(a), fkKey(b))),
+    uniques: [...t.uniques].sort((a, b) => byString(uniqueKey(a), uniqueKey(b))),
+  }));
+  tables.sort((a, b) => byString(a.id, b.id));
+  const views: ViewRef[] = (input.views ?? []).map((v) => ({ ...v, id: v.id ?? tableId(v.name, v.namespace) }));
+  views.sort((a, b) => byString(a.id, b.id));
+  return { tables, views };
+}
+
+/** Canonical order plus the content hash of the snapshot's meaning. */
+export function canonicalSnapshot(input: SnapshotInput): Snapshot {
+  const { tables, views } = canonicalOrder(input);
+  const hash = snapshotHashOf(tables.map(tableHash), views);
+  return { tables, views, hash };
+}
+
+/** Text form of a neutral type, e.g. `string(200)`, `decimal(10,2)`, `array(uuid)`. */
+export function formatType(t: NeutralType): string {
+  switch (t.kind) {
+    case 'decimal':
+      return t.precision !== undefined ? `decimal(${t.precision}${t.scale !== undefined ? `,${t.scale}` : ''})` : 'decimal';
+    case 'string':
+      return t.length !== undefined ? `string(${t.length})` : 'string';
+    case 'binary':
+      return t.length !== undefined ? `binary(${t.length})` : 'binary';
+    case 'timestamp':
+      return `timestamp${t.precision !== undefined ? `(${t.precision})` : ''}${t.withZone ? ' with zone' : ''}`;
+    case 'datetime':
+      return `datetime${t.precision !== undefined ? `(${t.precision})` : ''}`;
+    case 'time':
+      return `time${t.precision !== undefined ? `(${t.precision})` : ''}${t.withZone ? ' with zone' : ''}`;
+    case 'enum':
+      return t.name ? `enum(${t.name})` : `enum(${t.values.join('|')})`;
+    case 'array':
+      return `array(${formatType(t.of)})`;
+    case 'other':
+      return `other(${t.raw})`;
+    default:
+      return t.kind;
+  }
+}
+
+/**
+ * The neutral type without what is not part of a type change: an enum's values (a change of
+ * values is its own change kind), so that `sameType` compares kind, length, precision, scale.
+ */
+export function typeShape(t: NeutralType): unknown {
+  if (t.kind === 'enum') return { kind: 'enum', name: t.name ?? null };
+  if (t.kind === 'array') return { kind: 'array', of: typeShape(t.of) };
+  return t;
+}
+
+export function sameType(a: NeutralType, b: NeutralType): boolean {
+  return canonicalJson(typeShape(a)) === canonicalJson(typeShape(b));
+}
+
+/** The enum values of a type (also inside an array), or undefined when it is not an enum. */
+export function enumValues(t: NeutralType): string[] | undefined {
+  if (t.kind === 'enum') return t.values;
+  if (t.kind === 'array') return enumValues(t.of);
+  return undefined;
+}
