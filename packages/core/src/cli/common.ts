@@ -5,6 +5,7 @@ import { defaultCacheDir } from '../history/disk-cache.js';
 import { detectAdapter } from '../history/detect.js';
 import { openRepository } from '../git/repository.js';
 import { UsageError, EXIT } from '../util/errors.js';
+import { CONFIG_FILE, readConfigFile, readRepositoryConfig, type RunConfig } from './run-config.js';
 import { streamProgress, silentProgress, type Progress } from '../util/progress.js';
 
 /** Output streams and environment of one CLI run (replaceable in tests). */
@@ -45,7 +46,36 @@ export function addRepositoryOptions(cmd: Command): Command {
     .option('--path <path>', 'a schema file, directory or glob, relative to the repository root (overrides detection); repeat for several', collect)
     .option('--max-file-size <size>', 'files larger than this are not read (a diagnostic instead)', '5MB')
     .option('--cache-dir <dir>', `directory of the parse cache (default ${defaultCacheDir()})`)
-    .option('--no-cache', 'neither read nor write the parse cache');
+    .option('--no-cache', 'neither read nor write the parse cache')
+    .option('--config <file>', `a JSON file with adapter, paths and adapter options (default: ${CONFIG_FILE} at the repository root, read as data)`);
+}
+
+/**
+ * Settle the options of a run: what the command line gave explicitly wins over `--config FILE`,
+ * which wins over the repository's own configuration file.
+ */
+export async function applyConfig(
+  cmd: Command,
+  repo: string,
+  ref: string,
+  opts: { adapter: string; path?: string[]; config?: string; [k: string]: unknown },
+): Promise<void> {
+  const fromCli = (key: string): boolean => cmd.getOptionValueSource(key) === 'cli';
+  const configs: RunConfig[] = [];
+  if (opts.config) configs.push(readConfigFile(opts.config));
+  const inRepo = await readRepositoryConfig(repo, ref).catch((e) => {
+    if (e instanceof UsageError) throw e;
+    return undefined;
+  });
+  if (inRepo) configs.push(inRepo);
+  for (const cfg of configs) {
+    if (cfg.adapter && !fromCli('adapter') && opts.adapter === 'auto') opts.adapter = cfg.adapter;
+    if (cfg.paths && !opts.path) opts.path = cfg.paths;
+    for (const [flag, v] of Object.entries(cfg.options ?? {})) {
+      const key = camel(flag);
+      if (opts[key] === undefined) opts[key] = v;
+    }
+  }
 }
 
 /** Add the options each adapter declares, so that `--help` shows them and commander parses them. */

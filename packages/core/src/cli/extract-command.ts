@@ -7,6 +7,7 @@ import {
   adapterOptionValues,
   addAdapterOptions,
   addRepositoryOptions,
+  applyConfig,
   cacheDirOf,
   parseSize,
   progressFor,
@@ -27,6 +28,7 @@ export interface ExtractOptions {
   maxFileSize: string;
   cache?: boolean;
   cacheDir?: string;
+  config?: string;
   quiet?: boolean;
   strict?: boolean;
   [k: string]: unknown;
@@ -77,6 +79,7 @@ export function registerExtract(program: Command, io: CliIO, adapters: SchemaAda
   addRepositoryOptions(cmd);
   addAdapterOptions(cmd, adapters);
   cmd.action(async (repo: string, opts: ExtractOptions) => {
+    await applyConfig(cmd, repo, opts.ref, opts);
     const { doc, errors } = await runExtract(repo, opts, io);
     const text = serialiseDocument(doc);
     if (opts.output === '-') io.stdout.write(text);

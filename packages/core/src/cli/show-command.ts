@@ -5,6 +5,7 @@ import {
   adapterOptionValues,
   addAdapterOptions,
   addRepositoryOptions,
+  applyConfig,
   parseSize,
   resolveAdapter,
   useColor,
@@ -20,6 +21,7 @@ interface ShowOptions {
   json?: boolean;
   maxFileSize: string;
   color?: boolean;
+  config?: string;
   [k: string]: unknown;
 }
 
@@ -34,6 +36,7 @@ export function registerShow(program: Command, io: CliIO, adapters: SchemaAdapte
   addRepositoryOptions(cmd);
   addAdapterOptions(cmd, adapters);
   cmd.action(async (repo: string, opts: ShowOptions) => {
+    await applyConfig(cmd, repo, opts.ref, opts);
     const loaded = await resolveAdapter(opts.adapter, repo, opts.ref, opts.path);
     const s = await schemaAt({
       repo, ref: opts.ref, adapter: loaded.adapter, paths: opts.path,

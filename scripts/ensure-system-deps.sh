@@ -1,0 +1,12 @@
+#!/bin/sh
+# Install the system packages the tests need when they are missing (Debian; needs root or sudo).
+# Nothing is downloaded except Debian packages.
+set -eu
+need=""
+command -v git >/dev/null 2>&1 || need="$need git"
+if [ -n "$need" ]; then
+  if [ "$(id -u)" = "0" ]; then SUDO=""; else SUDO="sudo"; fi
+  echo "installing system packages:$need"
+  $SUDO apt-get update -qq
+  DEBIAN_FRONTEND=noninteractive $SUDO apt-get install -y -qq $need >/dev/null
+fi
