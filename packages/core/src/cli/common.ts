@@ -25,6 +25,8 @@ export function progressFor(io: CliIO, quiet: boolean): Progress {
   return quiet ? silentProgress : streamProgress(io.stderr);
 }
 
+const collect = (v: string, prev: string[] | undefined): string[] => [...(prev ?? []), v];
+
 const camel = (flag: string): string => flag.replace(/-([a-z0-9])/g, (_, c: string) => c.toUpperCase());
 
 /** Parse a size such as `5MB`, `512k`, `1048576`. */
@@ -36,8 +38,6 @@ export function parseSize(v: string): number {
   const mult = unit === 'k' ? 1024 : unit === 'm' ? 1024 ** 2 : unit === 'g' ? 1024 ** 3 : 1;
   return Math.round(n * mult);
 }
-
-const collect = (v: string, prev: string[] | undefined): string[] => [...(prev ?? []), v];
 
 /** Options shared by every command that reads a repository. */
 export function addRepositoryOptions(cmd: Command): Command {
@@ -94,7 +94,7 @@ function adapterOption(a: SchemaAdapter, o: AdapterOption): Option {
   const label = `[${a.name}] ${o.description}`;
   let opt: Option;
   if (o.type === 'boolean') opt = new Option(`--${o.flag}`, label);
-  else if (o.type === 'string[]') opt = new Option(`--${o.flag} <values...>`, label);
+  else if (o.type === 'string[]') opt = new Option(`--${o.flag} <value>`, `${label} (repeatable)`).argParser(collect);
   else opt = new Option(`--${o.flag} <value>`, label);
   if (o.choices) opt = opt.choices(o.choices as string[]);
   return opt;
