@@ -268,11 +268,11 @@ Object.assign($defs, {
       droppedColumns: arr('All-zero columns, left out of the tests.', { type: 'string' }),
     }),
     leftOut: arr('Tables of the analysis not in this table, with the reason.', obj('One table left out.', { table: str('Its id.'), reason: str('Why.') })),
-    chiSquare: ref('chiSquare'), exact: ref('exactTest'), cramersV: ref('cramersV'),
+    chiSquare: ref('chiSquare', 'Chi-square test of independence.'), exact: ref('exactTest', 'Exact test.'), cramersV: ref('cramersV', 'Strength of the association.'),
     reading: arr('Each result in one plain sentence.', { type: 'string' }),
   }),
   analysis: obj('Measures and statistics of the history (see docs/measures.md).', {
-    options: ref('analysisOptions'),
+    options: ref('analysisOptions', 'The options the analysis ran with.'),
     summary: obj('Counts over the analysis.', {
       versions: int('Versions.'), tables: int('Tables that ever existed.'), included: int('Of them, in the measures.'), excluded: int('Of them, left out by a filter.'),
       changes: int('Changes to tables in the measures.'), countedUpdates: int('Counted updates of tables in the measures.'),

@@ -12,53 +12,12 @@ import {
   type InterchangeDocument,
 } from '@schema-strata/core';
 import { coopSnapshotVersions } from '../fixtures/analysis/coop-story.js';
-import { EXPECTED_CLASS_BY_BAND, EXPECTED_CLASS_BY_BIRTH, EXPECTED_TABLES, EXPECTED_VERSIONS } from '../fixtures/analysis/coop-expected.js';
+import { checkAgainstHandWorked } from '../fixtures/analysis/check-hand-worked.js';
 import { R } from '../fixtures/analysis/r-reference.js';
 
 const stated = (): InterchangeDocument => documentFromSnapshots(coopSnapshotVersions({ stated: true }));
 const physical = (): InterchangeDocument => documentFromSnapshots(coopSnapshotVersions({ stated: false }));
 const close = (got: number, want: number, rel = 1e-9): void => expect(Math.abs(got - want) / Math.abs(want), `${got} vs ${want}`).toBeLessThanOrEqual(rel);
-
-/** Compare an analysis with the hand-worked expectations of coop-expected.ts. */
-export function checkAgainstHandWorked(a: Analysis): void {
-  expect(a.tables.map((t) => t.id)).toEqual(EXPECTED_TABLES.map((t) => t.id));
-  for (const e of EXPECTED_TABLES) {
-    const t = a.tables.find((x) => x.id === e.id)!;
-    const where = `table ${e.id}`;
-    expect(t.spells.map((s) => [s.born, s.removed]), where).toEqual(e.spells);
-    expect(t.birth.version, where).toBe(e.spells[0]![0]);
-    expect(t.removal?.version ?? null, where).toBe(e.spells[e.spells.length - 1]![1]);
-    expect(t.birthGroup, where).toBe(e.group);
-    expect(t.lifetime, where).toEqual({ versions: e.versions, days: e.days });
-    expect([t.columns.atBirth, t.columns.atEnd], where).toEqual(e.columns);
-    for (const k of CHANGE_KINDS) expect(t.changes[k], `${where} ${k}`).toBe(e.changes[k] ?? 0);
-    expect(t.countedUpdates, where).toBe(e.counted);
-    expect(t.updatesPerVersion, where).toBeCloseTo(e.counted / e.versions, 12);
-    expect(t.updatesPerYear, where).toBe(e.days >= 30 ? e.counted / (e.days / 365.25) : null);
-    expect(t.activityBand, where).toBe(e.band);
-    const g = t.graph!;
-    expect([g.inDegree, g.outDegree, g.degree, g.selfReferences], where).toEqual([e.inDegree, e.outDegree, e.inDegree + e.outDegree, e.selfReferences]);
-    expect(Object.fromEntries(g.references.map((r) => [r.table, r.foreignKeys])), where).toEqual(e.references);
-    expect(g.class, where).toBe(e.cls);
-    expect(g.classes.map((r) => [r.from, r.to, r.class]), where).toEqual(e.runs);
-    expect(g.classChanges, where).toBe(e.classChanges);
-  }
-  expect(a.versions.length).toBe(EXPECTED_VERSIONS.length);
-  EXPECTED_VERSIONS.forEach((e, i) => {
-    const v = a.versions[i]!;
-    const where = `version ${i}`;
-    expect([v.tables, v.columns, v.foreignKeys, v.countedUpdates], where).toEqual([e.tables, e.columns, e.foreignKeys, e.counted]);
-    for (const k of CHANGE_KINDS) expect(v.changes[k], `${where} ${k}`).toBe(e.changes[k] ?? 0);
-    expect([v.classes.isolated, v.classes.source, v.classes.sink, v.classes.intermediate], where).toEqual(e.classes);
-  });
-  expect(a.statistics.classByBirthGroup.table.counts).toEqual(EXPECTED_CLASS_BY_BIRTH);
-  expect(a.statistics.classByActivityBand.table.counts).toEqual(EXPECTED_CLASS_BY_BAND);
-  expect(a.summary).toMatchObject({
-    versions: 12, tables: 16, included: 16, changes: 52, countedUpdates: 22,
-    classes: { isolated: 3, source: 5, sink: 4, intermediate: 4 },
-    birthGroups: { initial: 8, later: 8 }, activityBands: { unchanged: 7, low: 8, high: 1 },
-  });
-}
 
 describe('the hand-worked co-op history (neutral snapshots, renames stated)', () => {
   const doc = stated();
