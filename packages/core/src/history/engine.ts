@@ -227,6 +227,11 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
       throw new UsageError(unsupported, EXIT.failure);
     }
     const anyFound = candidates.some((c) => c.files.length > 0);
+    if (!anyFound && !searched) {
+      // no commit touched a watched path: ask the adapter what it would have searched
+      const none = await adapter.locate(new TreeState().view(repo.head, reader), { options });
+      searched = none.searched ?? adapter.watch.join(', ');
+    }
     if (!anyFound) {
       throw new UsageError(
         `no ${adapter.name} schema found in the history of ${ref}${searched ? `; searched ${searched}` : ''}` +
