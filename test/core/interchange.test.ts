@@ -79,3 +79,28 @@ describe('the demo and its interchange file', () => {
     expect(fav.origin.file).toBe('prisma/schema.prisma');
   });
 });
+
+describe('the codebook', () => {
+  it('docs/codebook.md is generated from the JSON Schema and up to date', async () => {
+    const { spawnSync } = await import('node:child_process');
+    const r = spawnSync(process.execPath, [join(ROOT, 'scripts', 'make-codebook.mjs'), '--check'], { encoding: 'utf8' });
+    expect(r.stderr).toBe('');
+    expect(r.status).toBe(0);
+  });
+
+  it('every field of the JSON Schema has a description', () => {
+    const schema = JSON.parse(readFileSync(join(ROOT, 'packages', 'core', 'schema', 'history.schema.json'), 'utf8'));
+    const missing: string[] = [];
+    const walk = (s: any, path: string): void => {
+      if (!s || typeof s !== 'object') return;
+      for (const [k, v] of Object.entries<any>(s.properties ?? {})) {
+        if (!v.description) missing.push(`${path}.${k}`);
+        walk(v, `${path}.${k}`);
+      }
+      for (const [k, v] of Object.entries<any>(s.$defs ?? {})) walk(v, `$defs.${k}`);
+      if (s.items) walk(s.items, `${path}[]`);
+    };
+    walk(schema, '');
+    expect(missing).toEqual([]);
+  });
+});
