@@ -1,5 +1,5 @@
 import type { AdapterOptionValues, AssembleInput, AssembleResult, SchemaAdapter } from '@schema-strata/core';
-import { assembleSchema, datasourceInfo, type JoinKeyRule } from './prisma-assemble.js';
+import { assembleSchema, datasourceInfo, type JoinKeyRule, type ModelMemo } from './prisma-assemble.js';
 import { PRISMA_OPTIONS } from './prisma-config.js';
 import { locatePrisma, PRISMA_WATCH } from './prisma-locate.js';
 import { modernise, parseWithEngine } from './prisma-parse.js';
@@ -12,7 +12,7 @@ import { renderPrismaDemo } from './prisma-demo.js';
  * schema (Prisma parses a multi-file schema as one unit), so a parse error fails the whole
  * version, which core then marks `carried`.
  */
-export function assemblePrisma(input: AssembleInput<unknown>, options: AdapterOptionValues): AssembleResult {
+export function assemblePrisma(input: AssembleInput<unknown>, options: AdapterOptionValues, memo?: { previous: ModelMemo; next: ModelMemo; textIds: Map<string, number> }): AssembleResult {
   const files = input.files.map((f) => ({ path: f.path, text: f.text ?? '' }));
   if (files.every((f) => f.text.trim() === '')) {
     return {
@@ -37,7 +37,7 @@ export function assemblePrisma(input: AssembleInput<unknown>, options: AdapterOp
     provider: ds.provider ?? 'postgresql',
     relationMode: ds.relationMode,
     joinKey: (options['prisma-join-key'] as JoinKeyRule | undefined) ?? 'auto',
-  });
+  }, memo);
   if (!ds.provider) {
     diagnostics.push({ severity: 'info', code: 'prisma/no-datasource', message: 'no datasource block: types follow PostgreSQL' });
   }
@@ -57,13 +57,26 @@ export function assemblePrisma(input: AssembleInput<unknown>, options: AdapterOp
  * console.log(history.versions.length, 'versions');
  * ```
  */
-export const prismaAdapter: SchemaAdapter = Object.freeze({
+export const prismaAdapter: SchemaAdapter = Object.freeze<SchemaAdapter>({
   name: 'prisma',
   version: ADAPTER_VERSION,
   description: "Prisma schema files (single file, multi-file folders), parsed with Prisma's own engine",
   options: PRISMA_OPTIONS,
   watch: PRISMA_WATCH,
   locate: locatePrisma,
-  assemble: assemblePrisma,
+  assemble: (input, options) => assemblePrisma(input, options),
+  /** A run's session remembers the previous version's tables, so that unchanged models are not converted again. */
+  createSession: (options) => {
+    let previous: ModelMemo = new Map();
+    const textIds = new Map<string, number>();
+    return {
+      assemble(input) {
+        const next: ModelMemo = new Map();
+        const result = assemblePrisma(input, options, { previous, next, textIds });
+        if (!('failed' in result)) previous = next;
+        return result;
+      },
+    };
+  },
   renderDemo: renderPrismaDemo,
 });

@@ -22,6 +22,13 @@ export interface SchemaContext {
 
 type TableInput = SnapshotInput['tables'][number];
 
+/**
+ * Tables of the previous version, by a key that fixes everything their conversion reads: the
+ * model's block text, the text of every enum and model it refers to, and the schema context.
+ * A model whose key is unchanged is not converted again; only its origins (lines) are renewed.
+ */
+export type ModelMemo = Map<string, { table: TableInput; fields: Array<string | undefined>; diagnostics: Diagnostic[] }>;
+
 const ACTIONS: Record<string, ReferentialAction> = {
   Cascade: 'cascade',
   Restrict: 'restrict',
@@ -63,7 +70,12 @@ function qualified(name: string, namespace?: string): string {
  * Prisma's engine data model (plus the scanned source) to neutral tables. Conventions followed
  * are those of the engine version the adapter ships (see the package README).
  */
-export function assembleSchema(dm: Datamodel, blocks: ScannedBlock[], ctx: SchemaContext): { snapshot: SnapshotInput; diagnostics: Diagnostic[] } {
+export function assembleSchema(
+  dm: Datamodel,
+  blocks: ScannedBlock[],
+  ctx: SchemaContext,
+  memo?: { previous: ModelMemo; next: ModelMemo; textIds: Map<string, number> },
+): { snapshot: SnapshotInput; diagnostics: Diagnostic[] } {
   const diagnostics: Diagnostic[] = [];
   const byName = new Map<string, ScannedBlock>();
   for (const b of blocks) if (b.keyword === 'model' || b.keyword === 'view') byName.set(b.name, b);
@@ -84,8 +96,37 @@ export function assembleSchema(dm: Datamodel, blocks: ScannedBlock[], ctx: Schem
 
   const modelNames = new Set([...byName.keys(), ...dm.models.map((m) => m.name)]);
   const tables: TableInput[] = [];
+  // each block's text gets a small number (the same text, the same number, for the whole run),
+  // so that a model's memo key is short: its own number and those of the blocks it refers to
+  const blockId = new Map<string, number>();
+  if (memo) {
+    for (const b of blocks) {
+      if (b.keyword !== 'model' && b.keyword !== 'enum' && b.keyword !== 'view') continue;
+      let n = memo.textIds.get(b.text);
+      if (n === undefined) {
+        n = memo.textIds.size;
+        memo.textIds.set(b.text, n);
+      }
+      blockId.set(b.name, n);
+    }
+  }
+  const ctxKey = `${ctx.provider}|${ctx.relationMode}|${ctx.joinKey}`;
   for (const info of models.values()) {
-    tables.push(modelTable(info, models, modelNames, enums, ctx, diagnostics));
+    if (!memo || !info.block) {
+      tables.push(modelTable(info, models, modelNames, enums, ctx, diagnostics).table);
+      continue;
+    }
+    const refs = [...new Set(info.block.fields.map((f) => f.type))].filter((t) => blockId.has(t) && t !== info.model.name).sort();
+    const key = `${ctxKey}|${info.block.file}|${blockId.get(info.model.name)}|${refs.map((r) => `${r}=${blockId.get(r)}`).join(',')}`;
+    let hit = memo.previous.get(key) ?? memo.next.get(key);
+    if (!hit) {
+      const ds: Diagnostic[] = [];
+      const made = modelTable(info, models, modelNames, enums, ctx, ds);
+      hit = { table: made.table, fields: made.fields, diagnostics: ds };
+    }
+    memo.next.set(key, hit);
+    diagnostics.push(...hit.diagnostics);
+    tables.push(withCurrentOrigins(hit, info.block, key));
   }
   tables.push(...implicitJoinTables(models, ctx));
   tables.push(...ignoredModels(blocks, dm, modelNames, enums, ctx, diagnostics));
@@ -124,6 +165,20 @@ function scalarColumn(
   return col;
 }
 
+/** A memoised table with the origins of the current version (lines move when other blocks change). */
+function withCurrentOrigins(hit: { table: TableInput; fields: Array<string | undefined> }, block: ScannedBlock, key: string): TableInput {
+  const lines = new Map(block.fields.map((f) => [f.name, f.line]));
+  return {
+    ...hit.table,
+    contentKey: key,
+    origin: { file: block.file, line: block.line },
+    columns: hit.table.columns.map((c, i) => {
+      const line = lines.get(hit.fields[i] ?? '');
+      return line !== undefined ? { ...c, origin: { file: block.file, line } } : c;
+    }),
+  };
+}
+
 function modelTable(
   info: ModelInfo,
   models: Map<string, ModelInfo>,
@@ -131,13 +186,14 @@ function modelTable(
   enums: Map<string, Datamodel['enums'][number]>,
   ctx: SchemaContext,
   diagnostics: Diagnostic[],
-): TableInput {
+): { table: TableInput; fields: Array<string | undefined> } {
   const { model, block } = info;
   const scannedFields = new Map((block?.fields ?? []).map((f) => [f.name, f]));
   const columns: Column[] = [];
+  /** The field each column comes from, for origins. */
+  const fields: Array<string | undefined> = [];
   const uniques: UniqueConstraint[] = [];
   const fks: ForeignKey[] = [];
-  const emitted = new Set<string>();
   // Walk fields in source order when the scan has them, so that columns keep declaration order,
   // including the ones the engine's data model leaves out (@ignore, Unsupported).
   const order: Array<{ dmmf?: DmmfField; scanned?: ScannedField }> = [];
@@ -152,7 +208,7 @@ function modelTable(
       if (dmmf.kind === 'object') continue;
       const col = scalarColumn(dmmf, ctx, enums, scanned, block?.file);
       columns.push(col);
-      emitted.add(dmmf.name);
+      fields.push(dmmf.name);
       if (dmmf.isUnique) uniques.push({ columns: [col.name] });
       continue;
     }
@@ -160,6 +216,7 @@ function modelTable(
       const col = scannedColumn(scanned, ctx, enums, block!.file, modelNames);
       if (col) {
         columns.push(col);
+        fields.push(scanned.name);
         if (hasAttribute(scanned.attributes, '@unique')) uniques.push({ columns: [col.name] });
       }
     }
@@ -223,7 +280,7 @@ function modelTable(
   };
   if (info.namespace) t.namespace = info.namespace;
   if (block) t.origin = { file: block.file, line: block.line };
-  return t;
+  return { table: t, fields };
 }
 
 /** A column the engine's data model leaves out (`@ignore`, `Unsupported(...)`), from the source text. */

@@ -26,6 +26,8 @@ export interface ScannedBlock {
   blockAttributes: string[];
   /** For datasource/generator blocks: `key = value` properties (value as text). */
   properties: Map<string, { value: string; line: number }>;
+  /** The block's source text, from its opening line to its closing brace. */
+  text: string;
 }
 
 const OPEN = /^\s*(model|view|enum|type|datasource|generator)\s+([A-Za-z_][\w]*)\s*\{\s*(\/\/.*)?$/;
@@ -52,6 +54,7 @@ export function scanSchema(file: string, text: string): ScannedBlock[] {
   const lines = text.split(/\r?\n/);
   const blocks: ScannedBlock[] = [];
   let cur: ScannedBlock | null = null;
+  let openAt = 0;
   for (let i = 0; i < lines.length; i++) {
     const raw = lines[i]!;
     if (!cur) {
@@ -65,11 +68,14 @@ export function scanSchema(file: string, text: string): ScannedBlock[] {
           fields: [],
           blockAttributes: [],
           properties: new Map(),
+          text: '',
         };
+        openAt = i;
       }
       continue;
     }
     if (CLOSE.test(raw)) {
+      cur.text = lines.slice(openAt, i + 1).join('\n');
       blocks.push(cur);
       cur = null;
       continue;

@@ -35,7 +35,7 @@ export function formatSchema(tables: Table[], views: ViewRef[], style: Style = p
         t.primaryKey.length === 1 && t.primaryKey[0] === c.name ? 'primary key' : '',
         singleUnique.has(c.name) ? 'unique' : '',
         c.default !== undefined ? `default ${c.default}` : '',
-        c.generated ? `generated ${c.generated}` : '',
+        c.generated && c.default === undefined ? `generated ${c.generated}` : '',
       ].filter(Boolean).join(', '),
       style.dim(c.nativeType),
     ]);

@@ -12,13 +12,13 @@ import { diffSnapshots } from '../changes/diff-snapshots.js';
 import { BlobReader } from '../git/blob-reader.js';
 import { logPass, type LoggedCommit } from '../git/log-pass.js';
 import { firstParentLine, openRepository, resolveRevisions } from '../git/repository.js';
-import { isGlob, matcher, toPathspecs, TreeState } from '../git/tree-state.js';
+import { isGlob, matcher, selectUserPaths, toPathspecs, TreeState } from '../git/tree-state.js';
 import { canonicalJson } from '../model/canonical.js';
 import type { Diagnostic, Table, ViewRef } from '../model/types.js';
 import { UsageError, EXIT } from '../util/errors.js';
 import { RecordPack } from './disk-cache.js';
 import { pathLineage } from './path-lineage.js';
-import { SnapshotStore, type BuiltSnapshot, type TableOrigins } from './snapshot-store.js';
+import { packOrigins, SnapshotStore, unpackOrigins, type BuiltSnapshot, type PackedOrigins, type TableOrigins } from './snapshot-store.js';
 import type { Progress } from '../util/progress.js';
 
 export type VersionStatus = 'ok' | 'no change' | 'partial' | 'carried' | 'absent';
@@ -96,7 +96,7 @@ interface CachedUnit {
   k: 's';
   key: string;
   tables?: string[];
-  origins?: TableOrigins[];
+  origins?: PackedOrigins;
   views?: ViewRef[];
   failed?: boolean;
   d: Diagnostic[];
@@ -187,15 +187,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
       let located: Located;
       if (userPaths.length > 0) {
         const names = lineage ? lineage[i]! : [];
-        const selected = new Set<string>();
-        for (const p of tree.paths()) {
-          if (userMatch(p)) selected.add(p);
-        }
-        for (const n of names) {
-          if (tree.get(n) !== undefined) selected.add(n);
-          for (const p of view.under(n)) selected.add(p);
-        }
-        located = await adapter.locate(view, { paths: [...selected].sort(), options });
+        located = await adapter.locate(view, { paths: selectUserPaths(view, userMatch, names), options });
       } else {
         located = await adapter.locate(view, { options });
       }
@@ -227,6 +219,11 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
       throw new UsageError(unsupported, EXIT.failure);
     }
     const anyFound = candidates.some((c) => c.files.length > 0);
+    if (!anyFound && !searched) {
+      // no commit touched a watched path: ask the adapter what it would have searched
+      const none = await adapter.locate(new TreeState().view(repo.head, reader), { options });
+      searched = none.searched ?? adapter.watch.join(', ');
+    }
     if (!anyFound) {
       throw new UsageError(
         `no ${adapter.name} schema found in the history of ${ref}${searched ? `; searched ${searched}` : ''}` +
@@ -371,8 +368,36 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
   const runDiagnostics: Diagnostic[] = [];
   let lastPresent: BuiltSnapshot | null = null;
 
+  // Ask the blob reader for the files of the next few versions ahead of time, so that git reads
+  // them while this process parses (only files that no cache covers).
+  const unitKeys = new Map<Candidate, string>();
+  const unitKeyOf = (cand: Candidate): string => {
+    let k = unitKeys.get(cand);
+    if (k === undefined) {
+      k = hashText(canonicalJson({ files: cand.files.map((f) => [f.path, f.blob]) }));
+      unitKeys.set(cand, k);
+    }
+    return k;
+  };
+  let prefetched = 0;
+  const prefetch = (upTo: number): void => {
+    for (; prefetched < Math.min(upTo, candidates.length); prefetched++) {
+      const cand = candidates[prefetched]!;
+      const files = cand.files;
+      if (files.length === 0) continue;
+      if (!adapter.parseFile) {
+        const hit = unitCache.get(unitKeyOf(cand));
+        if (hit && unitTablesKnown(hit)) continue;
+        for (const f of files) void reader.read(f.blob).catch(() => undefined);
+      } else {
+        for (const f of files) if (!factsCache.has(f.blob)) void reader.read(f.blob).catch(() => undefined);
+      }
+    }
+  };
+
   ctx.progress?.phase('rebuilding versions', candidates.length);
   for (let vi = 0; vi < candidates.length; vi++) {
+    prefetch(vi + 8);
     const cand = candidates[vi]!;
     const c = cand.commit;
     const diagnostics: Diagnostic[] = [...cand.diagnostics];
@@ -392,7 +417,7 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
       let stale = false;
       let key: string;
       if (!adapter.parseFile) {
-        key = hashText(canonicalJson({ files: cand.files.map((f) => [f.path, f.blob]) }));
+        key = unitKeyOf(cand);
         const hit = unitCache.get(key);
         if (!hit || !unitTablesKnown(hit)) {
           for (const f of cand.files) {
@@ -476,7 +501,7 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
           unit = {
             k: 's', key,
             tables: made.snapshot.tables.map((t) => t.hash),
-            origins: made.origins,
+            origins: packOrigins(made.origins),
             views: made.snapshot.views,
             d: [...readDiagnostics, ...result.diagnostics],
             ...(result.counters && Object.keys(result.counters).length > 0 ? { c: result.counters } : {}),
@@ -505,7 +530,7 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
         const existing = snapshots.get(snapshot.hash);
         if (existing) snapshot = existing;
         unit.tables!.forEach((h, i) => {
-          if (!tableOrigins.has(h)) tableOrigins.set(h, unit!.origins?.[i] ?? {});
+          if (!tableOrigins.has(h)) tableOrigins.set(h, unit!.origins ? unpackOrigins(unit!.origins, i) : {});
         });
         // every table of this unit now has its first origins; the unit's copy is not needed again
         delete unit.origins;

@@ -1,4 +1,4 @@
-import { canonicalJson, canonicalOrder, contentHash, snapshotHashOf, tableMeaning, viewMeaning } from '../model/canonical.js';
+import { canonicalJson, canonicalOrder, contentHash, snapshotHashOf, tableMeaning, tableStorageKey, viewMeaning } from '../model/canonical.js';
 import type { Column, Origin, SnapshotInput, Table, ViewRef } from '../model/types.js';
 
 /** A table as stored once per run: without origins, with its two hashes. */
@@ -25,6 +25,19 @@ export interface TableOrigins {
   o?: Origin;
   /** One entry per column, in the stored column order. */
   c?: Array<Origin | null>;
+}
+
+/** Only the origins of an adapter's table (its content being known). */
+function originsOf(t: { origin?: Origin; columns: Column[] }): TableOrigins {
+  const out: TableOrigins = {};
+  if (t.origin) out.o = t.origin;
+  let any = false;
+  const c = t.columns.map((col) => {
+    if (col.origin) any = true;
+    return col.origin ?? null;
+  });
+  if (any) out.c = c;
+  return out;
 }
 
 function stripTable(t: Table): { table: Table; origins: TableOrigins } {
@@ -59,9 +72,63 @@ export function withOrigins(t: Table, origins: TableOrigins | undefined): Table 
   return out;
 }
 
+/**
+ * Origins of a snapshot's tables in a compact form for the disk cache: the distinct files, and
+ * per table `[file index, line, ...column entries]`, where a column entry is a line in the
+ * table's file, 0 for no origin, or `[file index, line]` for a column declared elsewhere.
+ * A table with no origin has file index -1.
+ */
+export interface PackedOrigins {
+  f: string[];
+  t: Array<Array<number | [number, number]>>;
+}
+
+export function packOrigins(all: TableOrigins[]): PackedOrigins {
+  const files: string[] = [];
+  const index = new Map<string, number>();
+  const fi = (f: string): number => {
+    let i = index.get(f);
+    if (i === undefined) {
+      i = files.length;
+      files.push(f);
+      index.set(f, i);
+    }
+    return i;
+  };
+  const t = all.map((o) => {
+    const own = o.o ? fi(o.o.file) : -1;
+    const row: Array<number | [number, number]> = [own, o.o?.line ?? 0];
+    for (const c of o.c ?? []) {
+      if (!c) row.push(0);
+      else if (own >= 0 && c.file === o.o!.file) row.push(c.line ?? 0);
+      else row.push([fi(c.file), c.line ?? 0]);
+    }
+    return row;
+  });
+  return { f: files, t };
+}
+
+export function unpackOrigins(p: PackedOrigins, i: number): TableOrigins {
+  const row = p.t[i];
+  if (!row) return {};
+  const [own, line, ...cols] = row as [number, number, ...Array<number | [number, number]>];
+  const out: TableOrigins = {};
+  if (own >= 0) out.o = line ? { file: p.f[own]!, line } : { file: p.f[own]! };
+  if (cols.length > 0) {
+    out.c = cols.map((c) => {
+      if (Array.isArray(c)) return c[1] ? { file: p.f[c[0]]!, line: c[1] } : { file: p.f[c[0]]! };
+      if (c === 0 || own < 0) return null;
+      return { file: p.f[own]!, line: c };
+    });
+  }
+  return out;
+}
+
 /** Interns tables by storage hash and builds snapshots from adapter output or from the cache. */
 export class SnapshotStore {
   private readonly tables = new Map<string, StoredTable>();
+  /** Stored tables by the adapter's content key (see SnapshotInput). */
+  private readonly byContentKey = new Map<string, StoredTable>();
 
   get size(): number {
     return this.tables.size;
@@ -82,8 +149,7 @@ export class SnapshotStore {
   }
 
   private intern(table: Table): { st: StoredTable; isNew: boolean } {
-    const text = canonicalJson(table);
-    const hash = contentHash(text);
+    const hash = contentHash(tableStorageKey(table));
     const existing = this.tables.get(hash);
     if (existing) return { st: existing, isNew: false };
     const st: StoredTable = { hash, meaningHash: contentHash(canonicalJson(tableMeaning(table))), table };
@@ -94,27 +160,39 @@ export class SnapshotStore {
   /**
    * Canonicalise an adapter's snapshot and intern its tables. Returns the snapshot, the origins
    * of each table (aligned with `snapshot.tables`) and the tables that were new to the store.
+   * A table whose content key (SnapshotInput) was seen before is taken as stored, unnormalised.
    */
   fromInput(input: SnapshotInput): { snapshot: BuiltSnapshot; origins: TableOrigins[]; newTables: StoredTable[] } {
-    const canon = canonicalOrder(input);
-    const stored: StoredTable[] = [];
-    const origins: TableOrigins[] = [];
+    const entries: Array<{ id: string; st: StoredTable; o: TableOrigins }> = [];
     const newTables: StoredTable[] = [];
-    for (const t of canon.tables) {
-      const { table, origins: o } = stripTable(t);
+    for (const t of input.tables) {
+      const contentKey = t.contentKey;
+      const known = contentKey !== undefined ? this.byContentKey.get(contentKey) : undefined;
+      if (known) {
+        entries.push({ id: known.table.id, st: known, o: originsOf(t) });
+        continue;
+      }
+      const [canon] = canonicalOrder({ tables: [t] }).tables;
+      const { table, origins: o } = stripTable(canon!);
+      delete (table as { contentKey?: string }).contentKey;
       const { st, isNew } = this.intern(table);
-      stored.push(st);
-      origins.push(o);
+      if (contentKey !== undefined) this.byContentKey.set(contentKey, st);
       if (isNew) newTables.push(st);
+      entries.push({ id: st.table.id, st, o });
     }
-    const views = canon.views.map(({ origin: _o, ...v }) => v);
-    return { snapshot: this.assembleSnapshot(stored, views), origins, newTables };
+    entries.sort((a, b) => (a.id < b.id ? -1 : a.id > b.id ? 1 : 0));
+    const views = canonicalOrder({ tables: [], views: input.views ?? [] }).views.map(({ origin: _o, ...v }) => v);
+    return {
+      snapshot: this.assembleSnapshot(entries.map((e) => e.st), views),
+      origins: entries.map((e) => e.o),
+      newTables,
+    };
   }
 
   assembleSnapshot(tables: StoredTable[], views: ViewRef[]): BuiltSnapshot {
     return {
       hash: snapshotHashOf(tables.map((t) => t.hash), views),
-      meaningHash: contentHash(canonicalJson({ tables: tables.map((t) => t.meaningHash), views: views.map(viewMeaning) })),
+      meaningHash: contentHash(`${JSON.stringify(tables.map((t) => t.meaningHash))}|${views.length ? canonicalJson(views.map(viewMeaning)) : ''}`),
       tables,
       views,
     };

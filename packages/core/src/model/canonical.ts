@@ -62,6 +62,55 @@ export function tableMeaning(t: Table): unknown {
   };
 }
 
+function normType(t: NeutralType): unknown {
+  const o: Record<string, unknown> = { kind: t.kind };
+  const a = t as Record<string, unknown>;
+  for (const k of ['length', 'precision', 'scale', 'withZone', 'name', 'values', 'raw'] as const) if (a[k] !== undefined) o[k] = a[k];
+  if (t.kind === 'array') o.of = normType(t.of);
+  return o;
+}
+
+function normColumn(c: Column): unknown {
+  const o: Record<string, unknown> = { name: c.name };
+  if (c.id !== undefined) o.id = c.id;
+  if (c.ormName !== undefined) o.ormName = c.ormName;
+  o.type = normType(c.type);
+  o.nativeType = c.nativeType;
+  o.nullable = c.nullable;
+  if (c.default !== undefined) o.default = c.default;
+  if (c.generated !== undefined) o.generated = c.generated;
+  return o;
+}
+
+function normForeignKey(f: ForeignKey): unknown {
+  const o: Record<string, unknown> = {};
+  if (f.name !== undefined) o.name = f.name;
+  o.columns = f.columns;
+  o.referencedTable = f.referencedTable;
+  o.referencedColumns = f.referencedColumns;
+  if (f.onDelete !== undefined) o.onDelete = f.onDelete;
+  if (f.onUpdate !== undefined) o.onUpdate = f.onUpdate;
+  o.enforcement = f.enforcement;
+  return o;
+}
+
+/**
+ * The storage key of a table without origins: JSON with a fixed key order (columns in
+ * declaration order). Equal tables give equal keys whatever order their properties were set in;
+ * properties outside the neutral model are not part of it.
+ */
+export function tableStorageKey(t: Table): string {
+  const o: Record<string, unknown> = { id: t.id, name: t.name };
+  if (t.namespace !== undefined) o.namespace = t.namespace;
+  if (t.ormName !== undefined) o.ormName = t.ormName;
+  o.kind = t.kind;
+  o.columns = t.columns.map(normColumn);
+  o.primaryKey = t.primaryKey;
+  o.foreignKeys = t.foreignKeys.map(normForeignKey);
+  o.uniques = t.uniques.map((u) => (u.name !== undefined ? { name: u.name, columns: u.columns } : { columns: u.columns }));
+  return JSON.stringify(o);
+}
+
 export function tableHash(t: Table): string {
   return contentHash(canonicalJson(tableMeaning(t)));
 }
@@ -72,7 +121,7 @@ export function viewMeaning(v: ViewRef): unknown {
 
 /** Hash of a snapshot from the hashes of its tables and its views. */
 export function snapshotHashOf(tableHashes: string[], views: ViewRef[]): string {
-  return contentHash(canonicalJson({ tables: tableHashes, views: views.map(viewMeaning) }));
+  return contentHash(`${JSON.stringify(tableHashes)}|${views.length ? canonicalJson(views.map(viewMeaning)) : ''}`);
 }
 
 /**

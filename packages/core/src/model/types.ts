@@ -127,7 +127,12 @@ export interface Snapshot {
 
 /** Input an adapter gives core; core sorts it and computes hashes. */
 export interface SnapshotInput {
-  tables: Array<Omit<Table, 'id'> & { id?: string }>;
+  /**
+   * Tables. `contentKey` is an optional promise of the adapter: within one run, two tables with
+   * the same key are equal but for their origins, so core can skip normalising and hashing
+   * the second one (an adapter that reuses unchanged tables between versions sets it).
+   */
+  tables: Array<Omit<Table, 'id'> & { id?: string; contentKey?: string }>;
   views?: Array<Omit<ViewRef, 'id'> & { id?: string }>;
 }
 

@@ -19,7 +19,8 @@ function fmtDuration(s: number): string {
 
 /**
  * A progress display on a stream: a bar redrawn in place (versions done of total, rate, time
- * left) when the stream is a terminal; plain lines, at most one every few seconds, otherwise.
+ * left) when the stream is a terminal; otherwise plain lines, only for a phase that runs longer
+ * than two seconds, then at most one every five seconds (short runs print nothing).
  */
 export function streamProgress(stream: NodeJS.WriteStream, now: () => number = () => Date.now()): Progress {
   const tty = !!stream.isTTY;
@@ -32,6 +33,7 @@ export function streamProgress(stream: NodeJS.WriteStream, now: () => number = (
   const draw = (done: number, force = false): void => {
     const t = now();
     if (!force && t - lastDraw < (tty ? 100 : 5000)) return;
+    if (!tty && !force && t - started < 2000) return;
     lastDraw = t;
     const elapsed = (t - started) / 1000;
     const rate = elapsed > 0 ? done / elapsed : 0;
@@ -67,8 +69,8 @@ export function streamProgress(stream: NodeJS.WriteStream, now: () => number = (
       started = now();
       lastDone = 0;
       lastDraw = 0;
-      if (!tty) stream.write(`${n}${tot !== undefined ? ` (${tot})` : ''}...\n`);
-      lastDraw = now();
+      // plain lines: the first after two seconds of this phase
+      lastDraw = tty ? now() : now() - 3000;
     },
     tick(done) {
       lastDone = done;
