@@ -1,6 +1,6 @@
 // Writes packages/core/schema/history.schema.json. The schema is kept as this script so that
 // shared parts ($defs) stay in one place; run `node scripts/make-schema.mjs` after editing.
-import { writeFileSync } from 'node:fs';
+import { existsSync, writeFileSync } from 'node:fs';
 
 const str = (description, extra = {}) => ({ type: 'string', description, ...extra });
 const int = (description, extra = {}) => ({ type: 'integer', minimum: 0, description, ...extra });
@@ -371,3 +371,13 @@ const schema = {
 };
 
 writeFileSync(new URL('../packages/core/schema/history.schema.json', import.meta.url), JSON.stringify(schema, null, 2) + '\n');
+
+// The columns of the CSV files, for the codebook, from the CSV writers themselves (build core first).
+const csvModule = new URL('../packages/core/dist/writers/csv/index.js', import.meta.url);
+if (existsSync(csvModule)) {
+  const { csvFieldsDocument } = await import(csvModule.href);
+  writeFileSync(new URL('../packages/core/schema/csv-fields.json', import.meta.url), JSON.stringify(csvFieldsDocument(), null, 2) + '\n');
+} else {
+  console.error('packages/core/dist is missing: run `npx tsc -b packages/core` first to write packages/core/schema/csv-fields.json');
+  process.exitCode = 1;
+}

@@ -225,3 +225,13 @@ describe('edge cases of the measures', () => {
     expect(JSON.stringify(a)).not.toMatch(/NaN|null,"reason"/);
   });
 });
+
+describe('the CSV codebook', () => {
+  test('packages/core/schema/csv-fields.json is what the CSV writers write (regenerate with node scripts/make-schema.mjs)', async () => {
+    const { readFileSync } = await import('node:fs');
+    const { createRequire } = await import('node:module');
+    const { csvFieldsDocument } = await import('@schema-strata/core');
+    const file = createRequire(import.meta.url).resolve('@schema-strata/core/package.json').replace(/package\.json$/, 'schema/csv-fields.json');
+    expect(JSON.parse(readFileSync(file, 'utf8'))).toEqual(csvFieldsDocument());
+  });
+});

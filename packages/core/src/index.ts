@@ -58,5 +58,5 @@ export { averageRanks } from './analysis/stats/ranks.js';
 export { CAUTION } from './analysis/stats/reading.js';
 export { analysisText } from './analysis/text/analysis-text.js';
 // ---- writers
-export { csvFiles, TABLE_COLUMNS, CHANGE_COLUMNS, VERSION_COLUMNS, type CsvColumn } from './writers/csv/index.js';
+export { csvFiles, csvFieldsDocument, TABLE_COLUMNS, CHANGE_COLUMNS, VERSION_COLUMNS, type CsvColumn } from './writers/csv/index.js';
 export { exportFormats, type ExportFormat } from './cli/export-command.js';

@@ -1,7 +1,7 @@
 import type { Change } from '../../changes/kinds.js';
 import type { Analysis } from '../../analysis/types.js';
 import type { InterchangeDocument } from '../../interchange/document.js';
-import { csvText, type CsvColumn } from './csv-text.js';
+import { csvText, under, type CsvColumn } from './csv-text.js';
 
 interface ChangeRow {
   change: Change;
@@ -13,19 +13,19 @@ interface ChangeRow {
 
 /** Columns of changes.csv: one row per change. */
 export const CHANGE_COLUMNS: readonly CsvColumn<ChangeRow>[] = [
-  { name: 'version', description: 'Index of the version at which the change is seen.', value: (r) => r.change.version },
-  { name: 'commit', description: 'Commit of that version.', value: (r) => r.commit },
-  { name: 'date', description: 'Committer date of that version, ISO 8601.', value: (r) => r.date },
-  { name: 'table', description: 'Stable id of the table.', value: (r) => r.change.table },
-  { name: 'kind', description: 'Change kind.', value: (r) => r.change.kind },
-  { name: 'column', description: 'Column, for column changes.', value: (r) => r.change.column },
-  { name: 'foreign_key', description: 'Referencing columns, comma-separated, for foreign-key changes.', value: (r) => r.change.foreignKey },
-  { name: 'before', description: 'Value before the change, as text.', value: (r) => r.change.before },
-  { name: 'after', description: 'Value after the change, as text.', value: (r) => r.change.after },
-  { name: 'basis', description: 'For renames: `stated` by the ORM code, or `heuristic`.', value: (r) => r.change.basis },
-  { name: 'evidence', description: 'For heuristic renames: what the match rests on.', value: (r) => r.change.evidence },
-  { name: 'counted', description: 'Whether the change is a counted update.', value: (r) => r.counted },
-  { name: 'included', description: 'Whether its table is in the measures.', value: (r) => r.included },
+  { name: 'version', type: 'integer', description: 'Index of the version at which the change is seen.', value: (r) => r.change.version },
+  { name: 'commit', type: 'string', description: 'Commit of that version.', value: (r) => r.commit },
+  { name: 'date', type: 'date-time', description: 'Committer date of that version, ISO 8601.', value: (r) => r.date },
+  { name: 'table', type: 'string', description: 'Stable id of the table.', value: (r) => r.change.table },
+  { name: 'kind', type: 'string', description: 'Change kind.', value: (r) => r.change.kind },
+  { name: 'column', type: 'string', description: 'Column, for column changes.', value: (r) => r.change.column },
+  { name: 'foreign_key', type: 'string', description: 'Referencing columns, comma-separated, for foreign-key changes.', value: (r) => r.change.foreignKey },
+  { name: 'before', type: 'string', description: 'Value before the change, as text.', value: (r) => r.change.before },
+  { name: 'after', type: 'string', description: 'Value after the change, as text.', value: (r) => r.change.after },
+  { name: 'basis', type: 'string', description: 'For renames: `stated` by the ORM code, or `heuristic`.', value: (r) => r.change.basis },
+  { name: 'evidence', type: 'string', description: 'For heuristic renames: what the match rests on.', value: (r) => r.change.evidence },
+  { name: 'counted', type: 'boolean', description: 'Whether the change is a counted update.', value: (r) => r.counted },
+  { name: 'included', type: 'boolean', description: 'Whether its table is in the measures.', value: (r) => r.included },
 ];
 
 export function changesCsv(doc: InterchangeDocument, a: Analysis): string {

@@ -3,6 +3,8 @@ import { stringify } from 'csv-stringify/sync';
 /** One column of a CSV file: its header, what it holds (for the codebook), and how to read it from a record. */
 export interface CsvColumn<T> {
   name: string;
+  /** What a field holds: string, integer, number, boolean (`true`/`false`) or date-time (ISO 8601). Empty fields are null. */
+  type: 'string' | 'integer' | 'number' | 'boolean' | 'date-time';
   description: string;
   value(record: T): string | number | boolean | null | undefined;
 }
@@ -23,3 +25,6 @@ export function csvText<T>(columns: readonly CsvColumn<T>[], records: readonly T
     },
   );
 }
+
+/** A change kind as part of a column name: `column-added` -> `column_added`. */
+export const under = (k: string): string => k.replace(/-/g, '_');
