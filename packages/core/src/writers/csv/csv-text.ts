@@ -21,6 +21,8 @@ export function csvText<T>(columns: readonly CsvColumn<T>[], records: readonly T
       header: true,
       columns: columns.map((c) => c.name),
       record_delimiter: 'windows',
+      // a lone line feed is a line break to most readers: quote it as RFC 4180 asks for line breaks
+      quoted_match: /[\r\n]/,
       cast: { boolean: (v: boolean) => (v ? 'true' : 'false'), number: (v: number) => String(v) },
     },
   );
