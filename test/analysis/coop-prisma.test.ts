@@ -173,3 +173,13 @@ describe('the co-op history end to end: git commits of Prisma schemas, extract -
     expect(text.out).toMatch(/^ {2}foreign key changed +\(loan_id\) +.*on delete restrict.* -> .*on delete cascade/m);
   });
 });
+
+describe('extract checks the analysis options before it reads the history', () => {
+  test('analysis options without --analyze, and bad values, are one-line usage errors', async () => {
+    for (const args of [['--count', 'column-added'], ['--analyze', '--high-above', '-1'], ['--analyze', '--band-by', 'age'], ['--renames', 'guess']]) {
+      const r = await run(['extract', repo, '--adapter', 'prisma', '-o', join(dir, 'never.json'), '--quiet', '--no-cache', ...args]);
+      expect(r.code, args.join(' ')).toBe(2);
+      expect(r.err.trimEnd().split('\n'), args.join(' ')).toHaveLength(1);
+    }
+  });
+});

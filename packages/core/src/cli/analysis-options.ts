@@ -111,8 +111,8 @@ async function revisionRule(doc: InterchangeDocument, rev: string, repo: string 
   return { kind: 'commit', commit: id, label: rev, version };
 }
 
-/** Settle the analysis options from the command line, for the given document. */
-export async function analysisOptionsFrom(opts: AnalysisCliOptions, doc: InterchangeDocument): Promise<AnalysisOptions> {
+/** The analysis options of the command line that need no document (every value checked). */
+export function checkedAnalysisOptions(opts: AnalysisCliOptions): Partial<AnalysisOptions> {
   const partial: Partial<AnalysisOptions> = {};
   if (opts.count) {
     const bad = opts.count.find((k) => !(CHANGE_KINDS as readonly string[]).includes(k));
@@ -129,9 +129,7 @@ export async function analysisOptionsFrom(opts: AnalysisCliOptions, doc: Interch
     throw new UsageError('--initial-versions and --initial-until: give one of them', EXIT.usage);
   }
   if (opts.initialVersions !== undefined) partial.initial = { kind: 'versions', count: number('--initial-versions', opts.initialVersions, true)! };
-  if (opts.initialUntil !== undefined) {
-    partial.initial = looksLikeDate(opts.initialUntil) ? { kind: 'date', date: opts.initialUntil } : await revisionRule(doc, opts.initialUntil, opts.repo);
-  }
+  if (opts.initialUntil !== undefined && looksLikeDate(opts.initialUntil)) partial.initial = { kind: 'date', date: opts.initialUntil };
   if (opts.exclude) partial.exclude = opts.exclude;
   if (opts.excludeImplicitJoins) partial.excludeImplicitJoins = true;
   if (opts.excludeOrmFks) partial.excludeOrmForeignKeys = true;
@@ -143,5 +141,14 @@ export async function analysisOptionsFrom(opts: AnalysisCliOptions, doc: Interch
     draws: number('--draws', opts.draws, true) ?? d.draws,
     seed: number('--seed', opts.seed, true) ?? d.seed,
   };
+  renameRequest(opts);
+  // the ranges (T >= 0, alpha in (0, 1), ...) are checked where the defaults are filled in
+  return { ...partial, ...resolveAnalysisOptions(partial), initial: partial.initial ?? { kind: 'version0' } };
+}
+
+/** Settle the analysis options from the command line, for the given document. */
+export async function analysisOptionsFrom(opts: AnalysisCliOptions, doc: InterchangeDocument): Promise<AnalysisOptions> {
+  const partial = checkedAnalysisOptions(opts);
+  if (opts.initialUntil !== undefined && !looksLikeDate(opts.initialUntil)) partial.initial = await revisionRule(doc, opts.initialUntil, opts.repo);
   return resolveAnalysisOptions(partial);
 }

@@ -7,7 +7,7 @@ import { analysisText } from '../analysis/text/analysis-text.js';
 import type { Analysis } from '../analysis/types.js';
 import { FORMAT_NAME, serialiseDocument, type InterchangeDocument } from '../interchange/document.js';
 import { UsageError, EXIT } from '../util/errors.js';
-import { addAnalysisOptions, analysisOptionsFrom, anyAnalysisOption, renameRequest, type AnalysisCliOptions } from './analysis-options.js';
+import { addAnalysisOptions, analysisOptionsFrom, anyAnalysisOption, checkedAnalysisOptions, renameRequest, type AnalysisCliOptions } from './analysis-options.js';
 import { useColor, type CliIO } from './common.js';
 import { extractHooks, type ExtractOptions } from './extract-command.js';
 import { colorStyle, plainStyle } from './format.js';
@@ -55,13 +55,20 @@ async function extractStep(doc: InterchangeDocument, opts: ExtractOptions): Prom
     doc.summary = d.summary;
   }
   if (o.analyze) doc.analysis = analyzeTimeline(timelineOf(doc), await analysisOptionsFrom(o, doc));
-  else if (anyAnalysisOption({ ...o, renames: undefined, renameThreshold: undefined })) {
+}
+
+/** Before `extract` runs: the analysis options are checked, and they need --analyze (renames do not). */
+function checkExtractOptions(opts: AnalysisCliOptions & { analyze?: boolean }): void {
+  checkedAnalysisOptions(opts);
+  if (!opts.analyze && anyAnalysisOption({ ...opts, renames: undefined, renameThreshold: undefined })) {
     throw new UsageError('analysis options need --analyze', EXIT.usage);
   }
 }
 
 export function registerAnalyze(program: Command, io: CliIO, setCode: (c: number) => void): void {
   if (!extractHooks.includes(extractStep)) extractHooks.push(extractStep);
+  const extract = program.commands.find((c) => c.name() === 'extract');
+  extract?.hook('preAction', (cmd) => checkExtractOptions(cmd.opts()));
   const cmd = program
     .command('analyze')
     .description('measure lifecycles, counted updates and foreign-key topology of a history file, and test how topology and change are associated')
