@@ -48,37 +48,45 @@ export function buildHistoryGraph(
   const cache = new EdgeCache(scope);
   const edges = new Map<string, { attrs: HistoryEdgeAttributes; range: RangeBuilder; source: string; target: string }>();
   const dangling = new Map<string, { d: DanglingForeignKey; range: RangeBuilder }>();
+  /** The ranges of a table's edges, by table object (an unchanged table is the same object). */
+  const rangesOf = new WeakMap<object, RangeBuilder[]>();
+  const recordsOf = (t: Parameters<EdgeCache['of']>[0]): RangeBuilder[] => {
+    let out = rangesOf.get(t);
+    if (out) return out;
+    out = [];
+    const got = cache.of(t);
+    for (const e of got.edges) {
+      let rec = edges.get(e.key);
+      if (!rec) {
+        const range = new RangeBuilder();
+        rec = { attrs: { columns: e.columns, referencedColumns: e.fk.referencedColumns, versions: range.ranges, enforcement: [] }, range, source: e.source, target: e.target };
+        edges.set(e.key, rec);
+      }
+      rec.attrs.columns = e.columns;
+      rec.attrs.referencedColumns = e.fk.referencedColumns;
+      if (!rec.attrs.enforcement.includes(e.fk.enforcement)) rec.attrs.enforcement.push(e.fk.enforcement);
+      out.push(rec.range);
+    }
+    for (const e of got.dangling) {
+      let rec = dangling.get(e.key);
+      if (!rec) {
+        const range = new RangeBuilder();
+        rec = { d: { table: e.source, columns: e.columns, referencedTable: e.target, versions: range.ranges }, range };
+        dangling.set(e.key, rec);
+      }
+      rec.d.columns = e.columns;
+      out.push(rec.range);
+    }
+    rangesOf.set(t, out);
+    return out;
+  };
   let active: RangeBuilder[] = [];
   let prevKey: string | null = null;
   for (const v of timeline.versions) {
     if (v.key !== prevKey) {
       prevKey = v.key;
       active = [];
-      for (const t of v.tables) {
-        const got = cache.of(t);
-        for (const e of got.edges) {
-          let rec = edges.get(e.key);
-          if (!rec) {
-            const range = new RangeBuilder();
-            rec = { attrs: { columns: e.columns, referencedColumns: e.fk.referencedColumns, versions: range.ranges, enforcement: [] }, range, source: e.source, target: e.target };
-            edges.set(e.key, rec);
-          }
-          rec.attrs.columns = e.columns;
-          rec.attrs.referencedColumns = e.fk.referencedColumns;
-          if (!rec.attrs.enforcement.includes(e.fk.enforcement)) rec.attrs.enforcement.push(e.fk.enforcement);
-          active.push(rec.range);
-        }
-        for (const e of got.dangling) {
-          let rec = dangling.get(e.key);
-          if (!rec) {
-            const range = new RangeBuilder();
-            rec = { d: { table: e.source, columns: e.columns, referencedTable: e.target, versions: range.ranges }, range };
-            dangling.set(e.key, rec);
-          }
-          rec.d.columns = e.columns;
-          active.push(rec.range);
-        }
-      }
+      for (const t of v.tables) for (const r of recordsOf(t)) active.push(r);
     }
     for (const r of active) r.mark(v.index);
   }
