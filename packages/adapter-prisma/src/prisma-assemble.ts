@@ -323,8 +323,9 @@ function scannedColumn(
  * "Many-to-many relations", conventions for relation tables in implicit m-n relations): named
  * `_` + relation name; column `A` references the model whose name comes first in alphabetical
  * order, `B` the other; both foreign keys cascade. The key follows the engine this adapter ships:
- * a primary key (A, B) on PostgreSQL and CockroachDB, a unique index (A, B) elsewhere; plus an
- * index on B.
+ * a primary key (A, B) on PostgreSQL (Prisma 6 and later; Prisma docs, "Upgrade to Prisma ORM 6":
+ * the change applies to PostgreSQL only), a unique index (A, B) elsewhere, CockroachDB included;
+ * plus an index on B.
  */
 function implicitJoinTables(models: Map<string, ModelInfo>, ctx: SchemaContext): TableInput[] {
   const relations = new Map<string, Array<{ model: ModelInfo; field: DmmfField }>>();
@@ -358,7 +359,7 @@ function implicitJoinTables(models: Map<string, ModelInfo>, ctx: SchemaContext):
       nativeType: nativeTypeText(f.type, false, f.nativeType),
       nullable: false,
     });
-    const pkRule = ctx.joinKey === 'auto' ? (ctx.provider === 'postgresql' || ctx.provider === 'cockroachdb' ? 'primary-key' : 'unique') : ctx.joinKey;
+    const pkRule = ctx.joinKey === 'auto' ? (ctx.provider === 'postgresql' ? 'primary-key' : 'unique') : ctx.joinKey;
     const enforcement = ctx.relationMode === 'prisma' ? 'orm' : 'database';
     const t: TableInput = {
       name: `_${relationName}`,
