@@ -12,7 +12,12 @@ import * as bg from '@prisma/schema-engine-wasm/schema_engine_bg';
 import { bindMigrationAwareSqlAdapterFactory, ColumnTypeEnum } from '@prisma/driver-adapter-utils';
 import { PGlite } from '@electric-sql/pglite';
 
-type Bg = typeof bg & { __wbg_set_wasm(exports: WebAssembly.Exports): void };
+type Exports = Record<string, unknown>;
+type Bg = typeof bg & { __wbg_set_wasm(exports: Exports): void };
+/** The WebAssembly global (Node's; @types/node 20 does not declare it). */
+const wasmApi = (globalThis as unknown as {
+  WebAssembly: { compile(b: Uint8Array): Promise<object>; instantiate(m: object, imports: Record<string, unknown>): Promise<{ exports: Exports }> };
+}).WebAssembly;
 
 let ready: Promise<void> | null = null;
 
@@ -21,8 +26,8 @@ function loadEngine(): Promise<void> {
   if (!ready) {
     ready = (async () => {
       const dir = dirname(fileURLToPath(import.meta.resolve('@prisma/schema-engine-wasm/schema_engine_bg')));
-      const module = await WebAssembly.compile(readFileSync(join(dir, 'schema_engine_bg.wasm')));
-      const instance = await WebAssembly.instantiate(module, { './schema_engine_bg.js': bg as unknown as WebAssembly.ModuleImports });
+      const module = await wasmApi.compile(readFileSync(join(dir, 'schema_engine_bg.wasm')));
+      const instance = await wasmApi.instantiate(module, { './schema_engine_bg.js': bg });
       (bg as Bg).__wbg_set_wasm(instance.exports);
       (instance.exports.__wbindgen_start as () => void)();
     })();
