@@ -209,7 +209,8 @@ function modelTable(
       const col = scalarColumn(dmmf, ctx, enums, scanned, block?.file);
       columns.push(col);
       fields.push(dmmf.name);
-      if (dmmf.isUnique) uniques.push({ columns: [col.name] });
+      // the engine's data model leaves `isUnique` unset on an `@id @unique` field, whose column still gets a unique index
+      if (dmmf.isUnique || (scanned && hasAttribute(scanned.attributes, '@unique'))) uniques.push({ columns: [col.name] });
       continue;
     }
     if (scanned) {
@@ -276,11 +277,27 @@ function modelTable(
     columns,
     primaryKey,
     foreignKeys: fks,
-    uniques,
+    uniques: distinctUniques(uniques),
   };
   if (info.namespace) t.namespace = info.namespace;
   if (block) t.origin = { file: block.file, line: block.line };
   return { table: t, fields };
+}
+
+/**
+ * One unique constraint per column list: the engine's data model reports a one-field
+ * `@@unique([x])` both as the field's `isUnique` and as a unique index, and the database gets one
+ * index. A name given to either is kept.
+ */
+function distinctUniques(uniques: UniqueConstraint[]): UniqueConstraint[] {
+  const byColumns = new Map<string, UniqueConstraint>();
+  for (const u of uniques) {
+    const key = u.columns.join('\u0000');
+    const seen = byColumns.get(key);
+    if (!seen) byColumns.set(key, u);
+    else if (!seen.name && u.name) byColumns.set(key, { ...seen, name: u.name });
+  }
+  return [...byColumns.values()];
 }
 
 /** A column the engine's data model leaves out (`@ignore`, `Unsupported(...)`), from the source text. */
@@ -418,7 +435,7 @@ function ignoredModels(
       severity: 'info', code: 'prisma/ignored-model', file: b.file, line: b.line,
       message: `model ${b.name} is marked @@ignore: its table is read from the source text (no foreign keys)`,
     });
-    const t: TableInput = { name: mapped ?? b.name, ormName: b.name, kind: 'table', columns, primaryKey, foreignKeys: [], uniques, origin: { file: b.file, line: b.line } };
+    const t: TableInput = { name: mapped ?? b.name, ormName: b.name, kind: 'table', columns, primaryKey, foreignKeys: [], uniques: distinctUniques(uniques), origin: { file: b.file, line: b.line } };
     if (namespace) t.namespace = namespace;
     out.push(t);
   }
