@@ -34,16 +34,28 @@ export interface ComparableTable {
  */
 const CLIENT_SIDE = /^(cuid|uuid|nanoid|ulid)\(/;
 
+/** A literal value; JSON objects and arrays in canonical form (jsonb reorders keys and spacing). */
+function literal(v: string): string {
+  if (/^\s*[[{]/.test(v)) {
+    try {
+      return `value:${canonicalJson(JSON.parse(v))}`;
+    } catch {
+      // not JSON: as it is
+    }
+  }
+  return `value:${v}`;
+}
+
 /** A default expression as PostgreSQL prints it (`information_schema.columns.column_default`), normalised. */
 export function normaliseDbDefault(expr: string | null): string | null {
   if (expr === null) return null;
   const e = expr.trim();
   if (/^nextval\(/.test(e)) return 'autoincrement()';
   if (e === 'CURRENT_TIMESTAMP' || e === 'now()') return 'now()';
-  const arr = /^ARRAY\[(.*)\](?:::[\w" .[\]]+)?$/.exec(e);
-  if (arr) return `[${arr[1]!.split(',').map((x) => normaliseDbDefault(x.trim())).join(',')}]`;
+  const arr = /^ARRAY\[(.*?)\](?:::[\w" .]+(?:\[\])*)?$/.exec(e);
+  if (arr) return `[${arr[1]!.split(',').map((x) => x.trim()).filter(Boolean).map((x) => normaliseDbDefault(x)).join(',')}]`;
   const lit = /^'((?:[^']|'')*)'(?:::[\w" .[\]()]+)?$/.exec(e);
-  if (lit) return `value:${lit[1]!.replace(/''/g, "'")}`;
+  if (lit) return literal(lit[1]!.replace(/''/g, "'"));
   const num = /^\(?(-?\d+(?:\.\d+)?)\)?(?:::[\w ]+)?$/.exec(e);
   if (num) return `value:${num[1]}`;
   if (e === 'true' || e === 'false') return `value:${e}`;
@@ -66,7 +78,7 @@ export function normaliseSchemaDefault(text: string | undefined, type: NeutralTy
     const items = t.slice(1, -1).split(',').map((x) => x.trim()).filter(Boolean);
     return `[${items.map((x) => normaliseSchemaDefault(x, inner, enumDbNames)).join(',')}]`;
   }
-  if (t.startsWith('"')) return `value:${JSON.parse(t) as string}`;
+  if (t.startsWith('"')) return literal(JSON.parse(t) as string);
   if (inner.kind === 'enum') return `value:${enumDbNames.get(t) ?? t}`;
   return `value:${t}`;
 }

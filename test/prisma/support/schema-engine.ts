@@ -121,19 +121,21 @@ function pgliteAdapter(db: PGlite) {
 }
 
 /**
- * The SQL Prisma's schema engine renders to create `schema` from an empty database (what
- * `prisma migrate diff --from-empty --to-schema-datamodel --script` prints). `schema` must be
- * acceptable to the current engine (pass it through the adapter's `modernise()` first).
+ * The SQL Prisma's schema engine renders to create a schema from an empty database (what
+ * `prisma migrate diff --from-empty --to-schema-datamodel --script` prints). The schema is one
+ * text or the files of a multi-file schema; it must be acceptable to the current engine (pass
+ * each text through the adapter's `modernise()` first).
  */
-export async function renderCreateSql(schema: string, path = 'schema.prisma'): Promise<string> {
+export async function renderCreateSql(schema: string | Array<{ path: string; text: string }>): Promise<string> {
   await loadEngine();
+  const files = typeof schema === 'string' ? [{ path: 'schema.prisma', text: schema }] : schema;
   const db = new PGlite();
   try {
-    const engine = await bg.SchemaEngine.new({ datamodels: [[path, schema]] } as never, () => {}, pgliteAdapter(db) as never);
+    const engine = await bg.SchemaEngine.new({ datamodels: files.map((f) => [f.path, f.text]) } as never, () => {}, pgliteAdapter(db) as never);
     try {
       const result = await engine.diff({
         from: { tag: 'empty' },
-        to: { tag: 'schemaDatamodel', files: [{ path, content: schema }] },
+        to: { tag: 'schemaDatamodel', files: files.map((f) => ({ path: f.path, content: f.text })) },
         script: true,
         exitCode: null,
         filters: { externalTables: [], externalEnums: [] },
