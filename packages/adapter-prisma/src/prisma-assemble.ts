@@ -37,6 +37,11 @@ const ACTIONS: Record<string, ReferentialAction> = {
   SetDefault: 'set default',
 };
 
+/** The default onDelete of a required relation: Restrict, or NoAction where the database has no Restrict. */
+function requiredOnDelete(ctx: SchemaContext): ReferentialAction {
+  return ctx.provider === 'sqlserver' && ctx.relationMode === 'foreignKeys' ? 'no action' : 'restrict';
+}
+
 /** The default schema of a provider: a table in it gets no namespace (design: namespace normalised to the default). */
 function defaultNamespace(provider: Provider): string | undefined {
   if (provider === 'postgresql' || provider === 'cockroachdb') return 'public';
@@ -252,14 +257,18 @@ function modelTable(
       const tf = target.fieldsByName.get(n);
       return tf ? columnName(tf) : n;
     });
-    const required = f.relationFromFields.every((n) => info.fieldsByName.get(n)?.isRequired !== false);
+    // the engine's "referential arity": required when any referencing field is required, else the
+    // relation field's own arity (prisma-engines, psl: RelationFieldWalker::referential_arity)
+    const required = f.relationFromFields.some((n) => info.fieldsByName.get(n)?.isRequired === true) || f.isRequired;
     const fk: ForeignKey = {
       columns: cols,
       referencedTable: target.id,
       referencedColumns: refCols,
-      // Defaults when the schema states none (Prisma docs, "Referential actions"): onDelete
-      // Restrict for required relations and SetNull for optional ones; onUpdate Cascade.
-      onDelete: f.relationOnDelete ? ACTIONS[f.relationOnDelete] ?? 'no action' : required ? 'restrict' : 'set null',
+      // Defaults when the schema states none (Prisma docs, "Referential actions", "Referential
+      // action defaults"): onDelete Restrict for required relations and SetNull for optional ones;
+      // onUpdate Cascade. Where the database has no Restrict (SQL Server with foreign keys; same
+      // page, support table) the engine uses NoAction instead (psl: default_on_delete_action).
+      onDelete: f.relationOnDelete ? ACTIONS[f.relationOnDelete] ?? 'no action' : required ? requiredOnDelete(ctx) : 'set null',
       onUpdate: f.relationOnUpdate ? ACTIONS[f.relationOnUpdate] ?? 'no action' : 'cascade',
       enforcement: ctx.relationMode === 'prisma' ? 'orm' : 'database',
     };
