@@ -96,4 +96,20 @@ model Loan {
     const fk = table(s, 'Loan').foreignKeys.find((f) => f.columns[0] === 'holderId')!;
     expect([fk.onDelete, fk.onUpdate]).toEqual(['set null', 'cascade']);
   });
+  it('SQL Server, which has no Restrict, gets NoAction for mandatory relations (same page, support table; prisma-engines psl, default_on_delete_action); emulated relations keep Restrict', () => {
+    // the wasm schema engine has no SQL Server connector, so this rests on the documentation and the engine's source
+    const loans = `model Member {\n  id    Int    @id\n  loans Loan[]\n}\n\nmodel Loan {\n  id       Int    @id\n  memberId Int\n  member   Member @relation(fields: [memberId], references: [id])\n}`;
+    const fk = (provider: string, extra = '') => {
+      const r = assemblePrisma(
+        { files: [{ path: 'schema.prisma', blob: '0', text: `datasource db {\n  provider = "${provider}"\n${extra}}\n\n${loans}` }], missing: [] },
+        {},
+      );
+      if ('failed' in r) throw new Error(JSON.stringify(r.diagnostics));
+      const f = r.snapshot.tables.find((t) => t.name === 'Loan')!.foreignKeys[0]!;
+      return [f.onDelete, f.onUpdate];
+    };
+    expect(fk('sqlserver')).toEqual(['no action', 'cascade']);
+    expect(fk('sqlserver', '  relationMode = "prisma"\n')).toEqual(['restrict', 'cascade']);
+    expect(fk('mysql')).toEqual(['restrict', 'cascade']);
+  });
 });

@@ -63,7 +63,9 @@ export function neutralFromSql(sqlType: string, enumLabels?: string[], enumName?
     case 'real': return { kind: 'float' };
     case 'double precision': return { kind: 'double' };
     case 'boolean': return { kind: 'boolean' };
-    case 'text': return { kind: 'text' };
+    case 'text':
+    case 'citext': // case-insensitive text (an extension type): text in the neutral model, as the adapter maps @db.Citext
+      return { kind: 'text' };
     case 'uuid': return { kind: 'uuid' };
     case 'date': return { kind: 'date' };
     case 'json':
