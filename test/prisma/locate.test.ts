@@ -5,8 +5,10 @@
  * schema). Each case is a repository built with real git commits and run through
  * extractHistory; the ambiguous case also goes through the CLI.
  */
+import { spawnSync } from 'node:child_process';
+import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { cleanUp, cli, extract, repository, tablesAt } from './support/history.js';
+import { cleanUp, cli, extract, repository, tablesAt, tempDir } from './support/history.js';
 
 afterAll(cleanUp);
 
@@ -136,5 +138,21 @@ describe('monorepos', () => {
     expect(picked.code).toBe(0);
     const doc = JSON.parse(picked.stdout) as { versions: Array<{ files: Array<{ path: string }> }> };
     expect(doc.versions.map((v) => v.files.map((f) => f.path))).toEqual([['db/postgresql/schema.prisma'], ['db/postgresql/schema.prisma']]);
+  });
+});
+
+describe('bare repositories', () => {
+  it('a bare clone gives the same versions as its work-tree repository (library and CLI)', async () => {
+    const repo = await repository([
+      { message: 'members', files: { 'prisma/schema.prisma': schema(model('Member')) } },
+      { message: 'tools', files: { 'prisma/schema.prisma': schema(model('Member'), model('Tool')) } },
+    ]);
+    const bare = join(tempDir(), 'coop.git');
+    expect(spawnSync('git', ['clone', '--quiet', '--bare', repo, bare]).status).toBe(0);
+    const [a, b] = [await extract(repo), await extract(bare)];
+    expect(b.versions.map((v) => [v.commit, v.status, v.snapshot])).toEqual(a.versions.map((v) => [v.commit, v.status, v.snapshot]));
+    const r = cli(['extract', bare, '-o', '-', '--no-cache', '--quiet']);
+    expect(r.code).toBe(0);
+    expect((JSON.parse(r.stdout) as { versions: unknown[] }).versions).toHaveLength(2);
   });
 });
