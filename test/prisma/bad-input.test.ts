@@ -61,6 +61,22 @@ describe('a schema that does not parse', () => {
   });
 });
 
+describe('a history in which no version builds', () => {
+  it.each([
+    ['a MongoDB schema', 'datasource db {\n  provider = "mongodb"\n}\n\nmodel Tool {\n  id   String @id @map("_id") @db.ObjectId\n  name String\n}\n', /the datasource provider is mongodb, which has no relational tables/],
+    ['a schema that never parses', 'model Tool {\n  id Int @id\n  name Strin\n}\n', /Type "Strin" is neither a built-in type/],
+  ])('%s: one line naming the reason, non-zero exit, no stack trace (library and CLI)', async (_label, text, reason) => {
+    const repo = await repository([{ message: 'the only schema', files: { 'prisma/schema.prisma': text } }]);
+    await expect(extract(repo)).rejects.toThrow(reason);
+    const r = cli(['extract', repo, '-o', '-', '--no-cache', '--quiet']);
+    expect(r.code).toBe(1);
+    expect(r.stderr.trim().split('\n')).toHaveLength(1);
+    expect(r.stderr).toMatch(/no version of the prisma schema could be built/);
+    expect(r.stderr).toMatch(reason);
+    expect(r.stdout).toBe('');
+  });
+});
+
 describe('files that cannot be read as a schema', () => {
   it('an empty file: prisma/empty-schema, carried', async () => {
     const repo = await repository([
