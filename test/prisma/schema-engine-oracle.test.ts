@@ -31,6 +31,7 @@ import { assemblePrisma, modernise, parseWithEngine } from '@schema-strata/adapt
 import { renderCreateSql } from './support/schema-engine.js';
 import { introspect, type DbSchema } from './support/pg-catalog.js';
 import { fromDatabase, fromSnapshot } from './support/compare.js';
+import { fromSqlite, sqliteWith } from './support/sqlite-catalog.js';
 
 const FIXTURES = join(import.meta.dirname, '..', 'fixtures', 'prisma', 'oracle');
 const fixture = (name: string): string => readFileSync(join(FIXTURES, name), 'utf8');
@@ -187,5 +188,28 @@ model Tag {
     const join = adapterSnapshot('schema.prisma', text).snapshot.tables.find((t) => t.name === '_TagToTool')!;
     expect(join.primaryKey).toEqual(key === 'primary-key' ? ['A', 'B'] : []);
     expect(join.uniques).toEqual(key === 'unique' ? [{ columns: ['A', 'B'] }] : []);
+  });
+});
+
+/**
+ * The same oracle on SQLite: the engine renders the SQLite SQL of sqlite.prisma, sql.js (SQLite
+ * in WebAssembly) runs it, and SQLite's PRAGMAs are compared with the adapter's snapshot: default
+ * type mappings of every Prisma scalar, keys, unique indexes, foreign keys and their actions,
+ * defaults, and the implicit m-n join table (a unique index (A, B) on SQLite, no primary key).
+ */
+describe('schema engine oracle on SQLite: sqlite.prisma', () => {
+  it('has the same tables, columns, keys, uniques and foreign keys as the database the engine creates', async () => {
+    const text = fixture('sqlite.prisma');
+    const sql = await renderCreateSql(modernise(text).text);
+    const db = await sqliteWith(sql);
+    try {
+      const fromDb = fromSqlite(db);
+      const fromAdapter = await fromSnapshot(null, adapterSnapshot('prisma/sqlite.prisma', text).snapshot, new Map());
+      expect(Object.keys(fromAdapter)).toEqual(Object.keys(fromDb));
+      for (const id of Object.keys(fromDb)) expect({ id, ...fromAdapter[id] }).toEqual({ id, ...fromDb[id] });
+      expect(fromDb._MemberToSkill!.uniques).toEqual(['A,B']);
+    } finally {
+      db.close();
+    }
   });
 });

@@ -84,9 +84,9 @@ export function normaliseSchemaDefault(text: string | undefined, type: NeutralTy
 }
 
 /** A neutral type as a string, for comparison; `other` types spelt as PostgreSQL spells them. */
-async function typeKey(db: PGlite, t: NeutralType): Promise<string> {
+async function typeKey(db: PGlite | null, t: NeutralType): Promise<string> {
   if (t.kind === 'array') return `array(${await typeKey(db, t.of)})`;
-  if (t.kind === 'other') return `other(${(await canonicalSqlType(db, t.raw)) ?? `unknown type ${t.raw}`})`;
+  if (t.kind === 'other' && db) return `other(${(await canonicalSqlType(db, t.raw)) ?? `unknown type ${t.raw}`})`;
   return canonicalJson(t);
 }
 
@@ -115,9 +115,12 @@ export async function fromDatabase(db: PGlite, schema: DbSchema): Promise<Record
   return out;
 }
 
-/** The adapter's tables in comparable form, by id; `withForeignKeys: false` leaves foreign keys out. */
+/**
+ * The adapter's tables in comparable form, by id; `withForeignKeys: false` leaves foreign keys
+ * out. `db` spells `other` types as PostgreSQL does (null: as written).
+ */
 export async function fromSnapshot(
-  db: PGlite,
+  db: PGlite | null,
   snapshot: SnapshotInput,
   enumDbNames: Map<string, string>,
   opts: { withForeignKeys?: boolean } = {},
