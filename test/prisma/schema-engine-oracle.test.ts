@@ -57,16 +57,24 @@ interface Rendered {
   schema: DbSchema;
 }
 
-async function renderAndLoad(text: string): Promise<Rendered> {
-  const sql = await renderCreateSql(modernise(text).text);
-  const db = new PGlite();
-  await db.exec(sql);
-  return { sql, db, schema: await introspect(db) };
+const renders = new Map<string, Promise<Rendered>>();
+/** Render a schema's SQL, run it in a new PGlite database and introspect it (once per text; the database is only read). */
+function renderAndLoad(text: string): Promise<Rendered> {
+  let r = renders.get(text);
+  if (!r) {
+    r = (async () => {
+      const sql = await renderCreateSql(modernise(text).text);
+      const db = new PGlite();
+      await db.exec(sql);
+      return { sql, db, schema: await introspect(db) };
+    })();
+    renders.set(text, r);
+  }
+  return r;
 }
 
-const opened: PGlite[] = [];
 afterAll(async () => {
-  for (const db of opened) await db.close();
+  for (const r of renders.values()) await (await r).db.close();
 });
 
 describe.each(['relations.prisma', 'types.prisma', 'multi-schema.prisma'])('schema engine oracle: %s', (name) => {
@@ -75,7 +83,6 @@ describe.each(['relations.prisma', 'types.prisma', 'multi-schema.prisma'])('sche
   let snapshot: SnapshotInput;
   beforeAll(async () => {
     rendered = await renderAndLoad(text);
-    opened.push(rendered.db);
     snapshot = adapterSnapshot(`prisma/${name}`, text).snapshot;
   });
 
@@ -105,7 +112,6 @@ describe('schema engine oracle: constructs with no table of their own', () => {
   it('a view renders no SQL and is a view of the snapshot, not a table', async () => {
     const text = fixture('types.prisma');
     const { sql, db, schema } = await renderAndLoad(text);
-    opened.push(db);
     const snap = adapterSnapshot('prisma/types.prisma', text).snapshot;
     expect(sql).not.toMatch(/ToolSummary/);
     expect([...schema.tables.keys()]).not.toContain('ToolSummary');
@@ -117,7 +123,6 @@ describe('schema engine oracle: constructs with no table of their own', () => {
   it('@@ignore models and @ignore fields are still created by the engine, and kept by the adapter', async () => {
     const text = fixture('types.prisma');
     const { db, schema } = await renderAndLoad(text);
-    opened.push(db);
     expect(schema.tables.has('archived_tools')).toBe(true);
     expect(schema.tables.get('Inventory')!.columns.map((c) => c.name)).toContain('legacy_code');
     const snap = adapterSnapshot('prisma/types.prisma', text).snapshot;
@@ -131,7 +136,6 @@ describe('schema engine oracle: relationMode = "prisma"', () => {
 
   it('the engine renders no foreign-key constraint; the adapter keeps the relations, marked orm', async () => {
     const { sql, db, schema } = await renderAndLoad(text);
-    opened.push(db);
     expect(sql).not.toMatch(/FOREIGN KEY/);
     for (const t of schema.tables.values()) expect(t.foreignKeys).toEqual([]);
     const snap = adapterSnapshot('prisma/relation-mode.prisma', text).snapshot;
@@ -146,7 +150,6 @@ describe('schema engine oracle: relationMode = "prisma"', () => {
 
   it("the adapter's orm-enforced FKs equal the constraints the engine renders in foreignKeys mode", async () => {
     const { db, schema } = await renderAndLoad(asForeignKeys);
-    opened.push(db);
     expect(schema.tables.get('Reservation')!.foreignKeys.length).toBe(2);
     const fromDb = await fromDatabase(db, schema);
     const fromAdapter = await fromSnapshot(db, adapterSnapshot('prisma/relation-mode.prisma', text).snapshot, new Map());

@@ -20,6 +20,7 @@ const wasmApi = (globalThis as unknown as {
 }).WebAssembly;
 
 let ready: Promise<void> | null = null;
+let engineDb: PGlite | null = null;
 
 /** Load the engine's wasm module once per process. */
 function loadEngine(): Promise<void> {
@@ -129,23 +130,21 @@ function pgliteAdapter(db: PGlite) {
 export async function renderCreateSql(schema: string | Array<{ path: string; text: string }>): Promise<string> {
   await loadEngine();
   const files = typeof schema === 'string' ? [{ path: 'schema.prisma', text: schema }] : schema;
-  const db = new PGlite();
+  // the engine only asks the database for its version here (a diff from empty applies nothing),
+  // so one PGlite serves every rendering of the process
+  engineDb ??= new PGlite();
+  const engine = await bg.SchemaEngine.new({ datamodels: files.map((f) => [f.path, f.text]) } as never, () => {}, pgliteAdapter(engineDb) as never);
   try {
-    const engine = await bg.SchemaEngine.new({ datamodels: files.map((f) => [f.path, f.text]) } as never, () => {}, pgliteAdapter(db) as never);
-    try {
-      const result = await engine.diff({
-        from: { tag: 'empty' },
-        to: { tag: 'schemaDatamodel', files: files.map((f) => ({ path: f.path, content: f.text })) },
-        script: true,
-        exitCode: null,
-        filters: { externalTables: [], externalEnums: [] },
-      } as never);
-      return result.stdout ?? '';
-    } finally {
-      engine.free();
-    }
+    const result = await engine.diff({
+      from: { tag: 'empty' },
+      to: { tag: 'schemaDatamodel', files: files.map((f) => ({ path: f.path, content: f.text })) },
+      script: true,
+      exitCode: null,
+      filters: { externalTables: [], externalEnums: [] },
+    } as never);
+    return result.stdout ?? '';
   } finally {
-    await db.close();
+    engine.free();
   }
 }
 
