@@ -244,6 +244,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
     const built = await buildVersions(inWindow, {
       adapter, options, reader, cacheDir: req.cacheDir, progress,
     });
+    if (built.versions.length === 0) throw new UsageError(`no version of the ${adapter.name} schema could be built: ${built.runDiagnostics.find((d) => d.severity === 'error')?.message ?? 'every one failed'}`, EXIT.failure);
     return {
       repository: req.repo,
       ref,
