@@ -162,7 +162,11 @@ function scalarColumn(
     nullable: f.isList ? true : !f.isRequired,
   };
   if (name !== f.name) col.ormName = f.name;
-  const def = defaultText(f.default, f.kind);
+  // an enum default names a value as the schema does; the database holds its mapped name
+  const e = f.kind === 'enum' ? enums.get(f.type) : undefined;
+  const dbValue = (v: unknown): unknown => (typeof v === 'string' ? e?.values.find((x) => x.name === v)?.dbName ?? v : v);
+  const raw = e ? (Array.isArray(f.default) ? f.default.map(dbValue) : dbValue(f.default)) : f.default;
+  const def = defaultText(raw, f.kind);
   if (def !== undefined) col.default = def;
   const dname = (f.default as { name?: string } | undefined)?.name;
   if (dname === 'autoincrement' || dname === 'sequence') col.generated = 'autoincrement';
