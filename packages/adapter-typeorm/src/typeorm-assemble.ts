@@ -636,10 +636,21 @@ class Builder {
   resolveTarget(rel: RelMeta): EntMeta | undefined {
     const r = rel.args;
     let t = r.type;
+    const viaFunction = isFnE(t);
     if (isFnE(t)) t = this.project.call(t, [], { file: r.origin.file, frames: [], depth: 0 });
+    if (viaFunction && isSymE(t) && t.s.k === 'schema') {
+      // RelationMetadata calls the function and compares the EntitySchema object itself with entity targets: never found
+      this.project.report(`rt\u0000${r.target}\u0000${rel.propertyPath}`, {
+        severity: 'warning', code: 'typeorm/relation-target-not-found', file: r.origin.file, line: r.origin.line,
+        message: `the relation ${rel.entity.targetName}.${rel.propertyPath} names an EntitySchema through a function, which TypeORM does not match to the entity (name the schema or its name directly); the relation is left out`,
+      });
+      return undefined;
+    }
     const where = `${rel.entity.targetName}.${rel.propertyPath}`;
+    // TypeORM builds EntitySchema definitions apart from decorated classes: a relation reaches its own kind only
+    const fromSchema = !!rel.entity.args.schema;
     if (typeof t === 'string') {
-      const byName = this.entities.find((e) => e.targetName === t || e.givenTableName === t);
+      const byName = this.entities.find((e) => !!e.args.schema === fromSchema && (e.targetName === t || e.givenTableName === t));
       if (byName) return byName;
       this.project.report(`rt\u0000${r.target}\u0000${rel.propertyPath}`, {
         severity: 'warning', code: 'typeorm/relation-target-not-found', file: r.origin.file, line: r.origin.line,
@@ -652,7 +663,7 @@ class Builder {
       if (s.k === 'class' || s.k === 'schema') {
         const key = s.k === 'class' ? classKey(s.file, s.c.name) : `schemafact:${s.file}#${s.s.line}`;
         const ent = this.entityByKey.get(key);
-        if (ent) return ent;
+        if (ent && !!ent.args.schema === fromSchema) return ent;
         this.project.report(`rt\u0000${r.target}\u0000${rel.propertyPath}`, {
           severity: 'warning', code: 'typeorm/relation-target-not-entity', file: r.origin.file, line: r.origin.line,
           message: `the target ${symName(s)} of the relation ${where} is not an entity of the data source; the relation is left out`,
@@ -783,12 +794,14 @@ class Builder {
       ? this.primaryColumns(inv)
       : jt.inverseJoinColumns.map((j) => invOwn.find((c) => c.propertyName === j.referencedColumnName)).filter((c): c is ColMeta => !!c);
     const { naming } = this.ds;
-    let name = jt.name ?? naming.joinTableName(owner.tableNameWithoutPrefix, inv.tableNameWithoutPrefix, rel.propertyPath, invRelation ? invRelation.propertyName : '');
-    if (!jt.name && this.mapped.maxAliasLength > 0 && name.length > this.mapped.maxAliasLength) name = shorten(name, { separator: '_', segmentLength: 3 });
+    const name = jt.name ?? naming.joinTableName(owner.tableNameWithoutPrefix, inv.tableNameWithoutPrefix, rel.propertyPath, invRelation ? invRelation.propertyName : '');
+    // EntityMetadata.build shortens a junction's name over the driver's alias limit (given names too)
+    let without = naming.tableName('', name);
+    if (this.mapped.maxAliasLength > 0 && without.length > this.mapped.maxAliasLength) without = shorten(without, { separator: '_', segmentLength: 3 });
     const junction: EntMeta = {
       key: `junction:${owner.key}#${rel.propertyPath}`,
       targetName: '', args: owner.args, kind: 'junction', givenTableName: name,
-      tableNameWithoutPrefix: naming.tableName('', name),
+      tableNameWithoutPrefix: without,
       tableName: '',
       ...((jt.schema ?? owner.schema) ? { schema: jt.schema ?? owner.schema } : {}),
       ...((jt.database ?? owner.database) ? { database: jt.database ?? owner.database } : {}),

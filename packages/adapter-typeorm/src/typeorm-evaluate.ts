@@ -466,7 +466,11 @@ export class Project {
   /** A custom decorator's call: evaluate every call in its body with its parameters bound; keep the TypeORM decorators that come out. */
   expand(f: FunctionFact, file: string, args: E[], depth: number): E {
     if (depth >= 4) return { $: 'unk', t: `${f.name}()` };
-    const env: Env = { file, frames: [args], depth: depth + 1 };
+    const bound = [...args];
+    (f.defaults ?? []).forEach((d, i) => {
+      if (d && bound[i] === undefined) bound[i] = this.eval(d, { file, frames: [], depth: depth + 1 });
+    });
+    const env: Env = { file, frames: [bound], depth: depth + 1 };
     const list: DecoE[] = [];
     for (const c of f.calls) {
       const e = this.eval(c, env);

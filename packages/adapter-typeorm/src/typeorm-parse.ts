@@ -107,6 +107,8 @@ export interface FunctionFact {
   calls: Value[];
   /** Expression returned, when the body is one expression or returns one. */
   returns?: Value;
+  /** Default values of parameters, by index (null: none). */
+  defaults?: Array<Value | null>;
 }
 
 export interface EnumFact {
@@ -389,7 +391,12 @@ class Reader {
     visit(fn.body, scope);
     if (calls.length === 0) return null;
     const r = this.returned(fn);
-    return { name, line, exported, isDefault, calls, ...(r ? { returns: this.value(r, scope) } : {}) };
+    const defaults = fn.parameters.map((p) => (p.initializer ? this.value(p.initializer) : null));
+    return {
+      name, line, exported, isDefault, calls,
+      ...(r ? { returns: this.value(r, scope) } : {}),
+      ...(defaults.some((d) => d !== null) ? { defaults } : {}),
+    };
   }
 
   // -------------------------------------------------------------------------------------------
