@@ -167,7 +167,8 @@ export async function typeormMetadata(modules: Map<string, Record<string, unknow
     ...(o.schema ? { schema: o.schema } : {}),
   };
   const ds = new DataSource(options);
-  await ds.buildMetadatas();
+  // building the metadata needs no connection (the method is protected in TypeORM's typings)
+  await (ds as unknown as { buildMetadatas(): Promise<void> }).buildMetadatas();
   return ds;
 }
 

@@ -13,7 +13,7 @@ import {
 } from './typeorm-evaluate.js';
 import { globMatcher } from './typeorm-modules.js';
 import { namingRules, shorten, type NamingRules } from './typeorm-naming.js';
-import { projectDirOf, sourceGlobs } from './typeorm-locate.js';
+import { entityGlobs } from './typeorm-locate.js';
 import type { ClassFact, ConfigFact, TypeormFileFacts } from './typeorm-parse.js';
 import {
   driverFamily, isSupportedType, mappedTypes, nativeTypeText, neutralType, normalizeType,
@@ -248,6 +248,7 @@ class Builder {
       ...(typeof schema === 'string' ? { schema } : {}),
     };
     // entity selection (every configuration's, together)
+    const sources = [...files.keys()].filter((p) => files.get(p)!.kind === 'source');
     if (configs.length > 0) {
       const globs: string[] = [];
       const keys = new Set<string>();
@@ -266,13 +267,25 @@ class Builder {
         }
         const list = isArrE(ent) ? ent.e : isObjE(ent) ? [...ent.p.values()] : [ent];
         const fileDir = posix.dirname(file) === '.' ? '' : posix.dirname(file);
-        const projectDir = cfg.source === 'code' ? projectDirOf(file, (p) => this.project.files.has(p) || p.endsWith('package.json')).dir : fileDir;
+        const ts = this.project.tsconfigFor(file);
+        const dirs = new Set(sources.flatMap((p) => ancestorsOf(p)));
+        const hasDir = (d: string): boolean => d === '' || dirs.has(d);
+        // TypeORM resolves relative paths against the working directory (the project's root): the
+        // package.json is not read here, so the nearest directory above the configuration whose
+        // reading of the globs matches files of this version is taken, else the repository root
+        const paths = list.filter((x): x is string => typeof x === 'string');
+        const candidates = cfg.source === 'code' ? [...ancestorsOf(file), ''] : [fileDir];
+        let chosen: string[] = [];
+        for (const d of candidates) {
+          const g = paths.flatMap((x) => entityGlobs(x, d, ts, hasDir));
+          chosen = g;
+          const m = globMatcher(g);
+          if (sources.some((p) => m(p))) break;
+        }
+        globs.push(...chosen);
         for (const item of list) {
-          if (typeof item === 'string') {
-            const abs = item.startsWith('/') ? posix.normalize(item).slice(1) : posix.normalize(posix.join(projectDir || '.', item)).replace(/^\.\//, '');
-            const glob = /[*?{[]/.test(abs) ? abs : abs.replace(/\/$/, '') + (/\.[cm]?[jt]sx?$/.test(abs) ? '' : '/**/*');
-            globs.push(...sourceGlobs(glob, this.project.tsconfigFor(file), () => true, projectDir));
-          } else if (isSymE(item) && item.s.k === 'class') keys.add(classKey(item.s.file, item.s.c.name));
+          if (typeof item === 'string') continue;
+          if (isSymE(item) && item.s.k === 'class') keys.add(classKey(item.s.file, item.s.c.name));
           else if (isSymE(item) && item.s.k === 'schema') keys.add(`schemafact:${item.s.file}#${item.s.s.line}`);
           else if (isSymE(item) && item.s.k === 'missing') {
             this.project.report(`dsmissing\u0000${item.s.path}`, {
@@ -1055,9 +1068,9 @@ class Builder {
 
   private outputColumn(c: ColMeta, table: string, ormName: string | undefined): Column {
     const family = this.ds.family;
+    if (c.design && c.mode !== 'virtual') this.designNotes(c, ormName ?? '');
     const written = c.type;
     const normalized = normalizeType(family, written);
-    if (c.design && c.mode !== 'virtual') this.designNotes(c, ormName ?? '');
     if (!isSupportedType(family, normalized, written) && written !== undefined) {
       this.project.report(`ut\u0000${c.origin.file}\u0000${c.origin.line}\u0000${c.propertyPath}`, {
         severity: 'warning', code: 'typeorm/unsupported-type', file: c.origin.file, line: c.origin.line,
@@ -1173,6 +1186,17 @@ class Builder {
       origin: { file: ent.args.file, line: ent.origin.line },
     };
   }
+}
+
+/** Directories above a path, nearest first (the repository root as ''). */
+function ancestorsOf(p: string): string[] {
+  const out: string[] = [];
+  let d = posix.dirname(p);
+  while (d !== '.' && d !== '/') {
+    out.push(d);
+    d = posix.dirname(d);
+  }
+  return out;
 }
 
 function generatedKind(s: string | undefined): GeneratedKind | undefined {

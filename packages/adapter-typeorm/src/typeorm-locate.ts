@@ -90,7 +90,7 @@ export function projectDirOf(file: string, has: (p: string) => boolean): { dir: 
     const d = dir === '.' ? '' : dir;
     const pkg = d ? `${d}/package.json` : 'package.json';
     if (has(pkg)) return { dir: d, consulted: pkg };
-    if (!d) return { dir: posix.dirname(file) === '.' ? '' : posix.dirname(file) };
+    if (!d) return { dir: '' };
     dir = posix.dirname(d);
   }
 }
@@ -111,6 +111,14 @@ export function sourceGlobs(glob: string, ts: TsconfigView | undefined, hasDir: 
   if (/\.js\b/.test(g) && !/\.ts\b/.test(g)) out.add(g.replace(/\.js\b/g, '.ts'));
   if (/\.js\b/.test(glob) && !/\.ts\b/.test(glob)) out.add(glob.replace(/\.js\b/g, '.ts'));
   return [...out];
+}
+
+/** Globs of one `entities` path, relative to the repository root (`/`-prefixed paths are already so, from __dirname). */
+export function entityGlobs(item: string, projectDir: string, ts: TsconfigView | undefined, hasDir: (d: string) => boolean): string[] {
+  const abs = item.startsWith('/') ? posix.normalize(item).slice(1) : posix.normalize(posix.join(projectDir || '.', item)).replace(/^\.\//, '');
+  if (abs.startsWith('..')) return [];
+  const glob = /[*?{[]/.test(abs) ? abs : abs.replace(/\/$/, '') + (SOURCE_FILE.test(abs) ? '' : '/**/*');
+  return sourceGlobs(glob === '.' ? '**/*' : glob, ts, hasDir, projectDir);
 }
 
 type Light = string | Light[] | { ref: string } | null;
@@ -197,12 +205,7 @@ export function selectionOf(cfg: ConfigFact, configPath: string, has: (p: string
   const list = Array.isArray(got) ? got : got === null ? null : [got];
   if (!list) return { ...sel, open: true };
   for (const item of list) {
-    if (typeof item === 'string') {
-      const abs = item.startsWith('/') ? posix.normalize(item).slice(1) : posix.normalize(posix.join(projectDir || '.', item)).replace(/^\.\//, '');
-      if (abs.startsWith('..')) continue;
-      const glob = /[*?{[]/.test(abs) ? abs : abs.replace(/\/$/, '') + (SOURCE_FILE.test(abs) ? '' : '/**/*');
-      sel.globs.push(...sourceGlobs(glob, ts, hasDir, projectDir));
-    } else if (item && !Array.isArray(item) && 'ref' in item) sel.refs.push(item.ref);
+    if (typeof item === 'string') sel.globs.push(...entityGlobs(item, projectDir, ts, hasDir)); else if (item && !Array.isArray(item) && 'ref' in item) sel.refs.push(item.ref);
     else sel.open = true;
   }
   return sel;

@@ -508,7 +508,7 @@ function classFact(r: Reader, c: TsNamespace.ClassLikeDeclaration, exported: boo
   const typeParams = new Set((c.typeParameters ?? []).map((t) => t.name.text));
   const fact: ClassFact = {
     name: c.name?.text ?? fallbackName ?? 'default',
-    line: r.line(c),
+    line: r.line(c.name ?? c),
     exported,
     isDefault,
     decorators: decoratorsOf(r, c),
@@ -525,7 +525,7 @@ function classFact(r: Reader, c: TsNamespace.ClassLikeDeclaration, exported: boo
       if (hasModifier(ts, m, ts.SyntaxKind.StaticKeyword)) continue;
       const name = r.propName(m.name);
       if (name === null) continue;
-      const prop: PropertyFact = { name, line: r.line(m), decorators: decoratorsOf(r, m), design: r.design(m.type, typeParams) };
+      const prop: PropertyFact = { name, line: r.line(m.name), decorators: decoratorsOf(r, m), design: r.design(m.type, typeParams) };
       if (m.type) prop.typeText = r.text(m.type);
       if (m.questionToken) prop.optional = true;
       fact.props.push(prop);
