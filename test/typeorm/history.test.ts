@@ -6,6 +6,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { extractHistory, writeRepository, type History, type ScriptedCommit } from '@schema-strata/core';
 import { typeormAdapter } from '@schema-strata/adapter-typeorm';
 import { compareWithOracle, compile, load, oracleTables, typeormMetadata } from './oracle.js';
+import { runAdapter } from './harness.js';
 
 /**
  * A synthetic history of a co-op's TypeORM entities, checked version by version against
@@ -271,6 +272,17 @@ describe('a synthetic TypeORM history', () => {
     }
     expect(checked).toBeGreaterThanOrEqual(20);
   }, 240_000);
+
+  it('gives, version after version, the tables a fresh assembly of that version gives (what it takes over is right)', async () => {
+    const strip = (t: object): string => JSON.stringify(t, (k, v) => (k === 'origin' || k === 'id' ? undefined : v));
+    for (const v of history.versions) {
+      if (v.status === 'partial') continue;
+      const fresh = await runAdapter(treeAt.get(v.commit)!);
+      const ours = tablesOf(v).map(strip).sort();
+      const theirs = fresh.snapshot!.tables.map((t) => strip({ ...t, foreignKeys: [...t.foreignKeys].sort((a, b) => (JSON.stringify(a) < JSON.stringify(b) ? -1 : 1)), uniques: [...t.uniques].sort((a, b) => (JSON.stringify(a) < JSON.stringify(b) ? -1 : 1)) })).sort();
+      expect(ours, `version ${v.index}`).toEqual(theirs);
+    }
+  });
 
   it('changes every subclass table in the version where the base class gains a column', () => {
     const v = versionTagged('base-column');

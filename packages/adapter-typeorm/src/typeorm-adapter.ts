@@ -1,5 +1,5 @@
 import type { AdapterOptionValues, FileFacts, SchemaAdapter, SourceFile } from '@schema-strata/core';
-import { assembleTypeorm } from './typeorm-assemble.js';
+import { assembleTypeorm, TypeormAssembler } from './typeorm-assemble.js';
 import { TYPEORM_OPTIONS } from './typeorm-config.js';
 import { renderTypeormDemo } from './typeorm-demo.js';
 import { locateTypeorm, TYPEORM_WATCH } from './typeorm-locate.js';
@@ -34,5 +34,6 @@ export const typeormAdapter: SchemaAdapter<TypeormFileFacts> = Object.freeze({
   locate: locateTypeorm,
   parseFile,
   assemble: assembleTypeorm,
+  createSession: (options: AdapterOptionValues) => new TypeormAssembler(options),
   renderDemo: renderTypeormDemo,
 });

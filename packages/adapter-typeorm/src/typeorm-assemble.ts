@@ -9,7 +9,7 @@ import {
   type ColumnArgs, type ColumnOpts, type EmbeddedArgs, type JoinColumnOpts, type RelationArgs, type TargetArgs, type UniqueArgs,
 } from './typeorm-decorators.js';
 import {
-  get, isArrE, isFnE, isObjE, isSymE, isUnk, Project, str, symName, textOf, type E, type Sym,
+  get, isArrE, isFnE, isObjE, isSymE, isUnk, Project, str, symName, textOf, type E, type Sym, type Tracked, type VersionDelta,
 } from './typeorm-evaluate.js';
 import { globMatcher } from './typeorm-modules.js';
 import { namingRules, shorten, type NamingRules } from './typeorm-naming.js';
@@ -57,6 +57,8 @@ interface ColMeta {
   enumName?: string;
   isArray: boolean;
   generated?: string;
+  /** The type the generation strategy gives (applied last, after foreign keys copied the declared type). */
+  generatedType?: ColumnTypeRef;
   computed?: boolean;
   prefixes: string[];
   databaseName: string;
@@ -110,36 +112,73 @@ interface EntMeta {
   relations: RelMeta[];
   uniques: Array<{ name?: string; columns: ColMeta[] }>;
   foreignKeys: ForeignKey[];
+  /** Join and closure tables this entity's relations and tree create. */
+  junctions: EntMeta[];
   origin: Origin;
+  /** What relating entities take from it, as built by phase A (see `signature`). */
+  sigA?: string;
+  /** Its primary key includes a join column of its own relations (typed by what they reference). */
+  keyedByRelation?: boolean;
 }
 
 const ACTIONS: Record<string, ReferentialAction> = {
   CASCADE: 'cascade', RESTRICT: 'restrict', 'NO ACTION': 'no action', 'SET NULL': 'set null', 'SET DEFAULT': 'set default', DEFAULT: 'set default',
 };
 
-function action(s: string | undefined, diagnostics: Diagnostic[], origin?: Origin): ReferentialAction {
+function action(s: string | undefined, project: Project, origin?: Origin): ReferentialAction {
   if (!s) return 'no action';
   const a = ACTIONS[s.toUpperCase()];
   if (a) return a;
-  diagnostics.push({ severity: 'warning', code: 'typeorm/unknown-action', ...(origin ? { file: origin.file, line: origin.line } : {}), message: `referential action ${s} is not one TypeORM knows; recorded as no action` });
+  project.report(`act\u0000${origin?.file}\u0000${origin?.line}\u0000${s}`, {
+    severity: 'warning', code: 'typeorm/unknown-action', ...(origin ? { file: origin.file, line: origin.line } : {}),
+    message: `referential action ${s} is not one TypeORM knows; recorded as no action`,
+  });
   return 'no action';
+}
+
+/** What one run's assembly keeps from version to version, each result with the files it read. */
+export class AssemblyCache {
+  /** Fingerprint of what every result depends on (options, paths, configurations, tsconfig files, the entity set). */
+  global = '';
+  entitySet = '';
+  readonly classArgs = new Map<string, Tracked<TargetArgs | undefined>>();
+  readonly isEntity = new Map<string, Tracked<boolean>>();
+  readonly ancestors = new Map<string, Tracked<string[]>>();
+  readonly schemas = new Map<string, Tracked<TargetArgs | undefined>>();
+  readonly entities = new Map<string, { ent: EntMeta; result: Tracked<TableInput[]>; targets: Map<string, string> }>();
+  version = 0;
+  previous = new Map<string, TypeormFileFacts>();
+
+  clear(): void {
+    this.classArgs.clear();
+    this.isEntity.clear();
+    this.ancestors.clear();
+    this.schemas.clear();
+    this.entities.clear();
+  }
 }
 
 class Builder {
   readonly project: Project;
   readonly reader: DecoratorReader;
   readonly diagnostics: Diagnostic[] = [];
-  private readonly targetArgs = new Map<string, TargetArgs>();
   private readonly classByKey = new Map<string, { file: string; cls: ClassFact }>();
-  private readonly baseMemo = new Map<string, string[]>();
   ds!: DataSourceInfo;
   mapped!: MappedTypes;
   entities: EntMeta[] = [];
   private readonly entityByKey = new Map<string, EntMeta>();
-  readonly junctions: EntMeta[] = [];
+  /** Entities reused from the previous version (their tables are the same objects). */
+  readonly reused = new Set<EntMeta>();
+  private readonly phaseA = new Map<EntMeta, Tracked<void>>();
+  private readonly schemaArgs = new Map<string, TargetArgs>();
+  private readonly closureMemo = new Map<EntMeta, Tracked<void>>();
 
-  constructor(files: Map<string, TypeormFileFacts>, readonly settings: TypeormSettings) {
-    this.project = new Project(files);
+  /** Signatures of the targets the entity in phase B has used so far. */
+  private targetsUsed: Map<string, string> | null = null;
+  private readonly sigMemo = new Map<EntMeta, string>();
+
+  constructor(files: Map<string, TypeormFileFacts>, readonly settings: TypeormSettings, readonly cache: AssemblyCache, delta?: VersionDelta) {
+    this.project = new Project(files, delta);
     this.reader = new DecoratorReader(this.project, settings);
     for (const [file, facts] of files) for (const c of facts.classes) this.classByKey.set(classKey(file, c.name), { file, cls: c });
   }
@@ -148,23 +187,42 @@ class Builder {
     return this.project.tsconfigFor(file)?.strictNullChecks ?? false;
   }
 
-  args(key: string): TargetArgs | undefined {
-    let a = this.targetArgs.get(key);
-    if (a) return a;
+  /** A tracked result from a cache of the run, computed again when a file it read changed. */
+  private cached<T>(map: Map<string, Tracked<T>>, key: string, compute: () => T): T {
+    const hit = map.get(key);
+    if (hit && this.project.valid(hit)) {
+      this.project.replay(hit);
+      return hit.value;
+    }
+    const t = this.project.track(compute);
+    map.set(key, t);
+    return t.value;
+  }
+
+  private classOf(key: string): { file: string; cls: ClassFact } | undefined {
     const c = this.classByKey.get(key);
-    if (!c) return undefined;
-    a = this.reader.readClass(c.file, c.cls, this.strictOf(c.file));
-    this.targetArgs.set(key, a);
-    return a;
+    if (c) this.project.touch(c.file);
+    return c;
+  }
+
+  args(key: string): TargetArgs | undefined {
+    const schema = this.schemaArgs.get(key);
+    if (schema) return schema;
+    return this.cached(this.cache.classArgs, key, () => {
+      const c = this.classOf(key);
+      return c ? this.reader.readClass(c.file, c.cls, this.strictOf(c.file)) : undefined;
+    });
   }
 
   /** Ancestors of a class (nearest first), followed through imports; cycles and unfollowable bases are reported. */
   ancestors(key: string): string[] {
-    const memo = this.baseMemo.get(key);
-    if (memo) return memo;
+    return this.cached(this.cache.ancestors, key, () => this.ancestorsUncached(key));
+  }
+
+  private ancestorsUncached(key: string): string[] {
     const out: string[] = [];
     const seen = new Set<string>([key]);
-    let cur = this.classByKey.get(key);
+    let cur = this.classOf(key);
     while (cur && cur.cls.base) {
       const e = this.project.eval(cur.cls.base, { file: cur.file, frames: [], depth: 0 });
       if (!isSymE(e)) {
@@ -193,9 +251,9 @@ class Builder {
       }
       seen.add(k);
       out.push(k);
+      this.project.touch(s.file);
       cur = { file: s.file, cls: s.c };
     }
-    this.baseMemo.set(key, out);
     return out;
   }
 
@@ -352,17 +410,24 @@ class Builder {
         if (c.decorators.length === 0) continue;
         const key = classKey(file, c.name);
         // only classes whose class decorators are TypeORM's entity decorators are read in full
-        const { decos } = this.reader.resolveUses(c.decorators, file);
-        if (!decos.some((d) => d.name === 'Entity' || d.name === 'ChildEntity' || d.name === 'ViewEntity')) continue;
+        const isEntity = this.cached(this.cache.isEntity, key, () => {
+          this.project.touch(file);
+          const { decos } = this.reader.resolveUses(c.decorators, file);
+          return decos.some((d) => d.name === 'Entity' || d.name === 'ChildEntity' || d.name === 'ViewEntity');
+        });
+        if (!isEntity) continue;
         const a = this.args(key)!;
         if (a.tables.length > 0) candidates.push({ a });
       }
-      for (const s of facts.schemas) {
-        const a = this.reader.readSchema(file, s);
-        if (!a) continue;
-        this.targetArgs.set(a.key, a);
+      facts.schemas.forEach((s, i) => {
+        const a = this.cached(this.cache.schemas, `${file}\u0000${i}`, () => {
+          this.project.touch(file);
+          return this.reader.readSchema(file, s);
+        });
+        if (!a) return;
+        this.schemaArgs.set(a.key, a);
         candidates.push({ a, schemaFactKey: `schemafact:${file}#${s.line}` });
-      }
+      });
     }
     for (const { a, schemaFactKey } of candidates) {
       if (this.ds.select && !this.ds.select.match(a.file) && !this.ds.select.keys.has(a.key) && !(schemaFactKey && this.ds.select.keys.has(schemaFactKey))) continue;
@@ -373,16 +438,15 @@ class Builder {
         });
         continue;
       }
-      const t = a.tables[0]!;
-      const ent: EntMeta = {
-        key: a.key, targetName: a.name, args: a, kind: t.type,
-        ...(t.name ? { givenTableName: t.name } : {}),
-        tableNameWithoutPrefix: '', tableName: '',
-        ...(t.schema ? { schema: t.schema } : {}),
-        ...(t.database ? { database: t.database } : {}),
-        tree: [a.key, ...(a.cls ? this.ancestors(a.key) : [])],
-        ownColumns: [], embeddeds: [], relations: [], uniques: [], foreignKeys: [], origin: t.origin,
-      };
+      const entry = this.cache.entities.get(a.key);
+      if (entry && entry.ent.args === a && this.project.valid(entry.result)) {
+        this.reused.add(entry.ent);
+        this.entities.push(entry.ent);
+        this.entityByKey.set(a.key, entry.ent);
+        if (schemaFactKey) this.entityByKey.set(schemaFactKey, entry.ent);
+        continue;
+      }
+      const ent = this.newEntMeta(a);
       this.entities.push(ent);
       this.entityByKey.set(a.key, ent);
       if (schemaFactKey) this.entityByKey.set(schemaFactKey, ent);
@@ -405,7 +469,7 @@ class Builder {
       if (ent.args.inheritance?.pattern === 'STI') {
         ent.sti = true;
         const children = this.entities.filter((c) => c.kind === 'entity-child' && c.parent === ent);
-        ent.tree.push(...children.map((c) => c.key));
+        if (!this.reused.has(ent)) ent.tree.push(...children.map((c) => c.key));
       } else if (ent.args.inheritance) {
         this.project.report(`cti\u0000${ent.key}`, {
           severity: 'warning', code: 'typeorm/unsupported-inheritance', file: ent.args.file, line: ent.origin.line,
@@ -415,10 +479,23 @@ class Builder {
     }
   }
 
+  private newEntMeta(a: TargetArgs): EntMeta {
+    const t = a.tables[0]!;
+    return {
+      key: a.key, targetName: a.name, args: a, kind: t.type,
+      ...(t.name ? { givenTableName: t.name } : {}),
+      tableNameWithoutPrefix: '', tableName: '',
+      ...(t.schema ? { schema: t.schema } : {}),
+      ...(t.database ? { database: t.database } : {}),
+      tree: [a.key, ...(a.cls ? this.ancestors(a.key) : [])],
+      ownColumns: [], embeddeds: [], relations: [], uniques: [], foreignKeys: [], junctions: [], origin: t.origin,
+    };
+  }
+
   /** Table names of every entity (EntityMetadata.build), then duplicates reported. */
-  nameEntities(): void {
+  nameOne(ent: EntMeta): void {
     const { naming, entityPrefix } = this.ds;
-    for (const ent of this.entities) {
+    {
       if (ent.kind === 'entity-child' && ent.parent) {
         ent.givenTableName = ent.parent.givenTableName;
         ent.schema = ent.parent.schema;
@@ -430,6 +507,10 @@ class Builder {
       if (!ent.schema && this.ds.schema) ent.schema = this.ds.schema;
       ent.tableName = entityPrefix ? naming.prefixTableName(entityPrefix, ent.tableNameWithoutPrefix) : ent.tableNameWithoutPrefix;
     }
+  }
+
+  nameEntities(): void {
+    for (const ent of this.entities) this.nameOne(ent);
     const owners = new Map<string, EntMeta>();
     const keep: EntMeta[] = [];
     for (const ent of this.entities) {
@@ -650,7 +731,8 @@ class Builder {
     const r = rel.args;
     let t = r.type;
     const viaFunction = isFnE(t);
-    if (isFnE(t)) t = this.project.call(t, [], { file: r.origin.file, frames: [], depth: 0 });
+    // the target's file counts as read for its exports only: its columns are the target's own business
+    if (isFnE(t)) t = this.project.shallow(() => this.project.call(t, [], { file: r.origin.file, frames: [], depth: 0 }));
     if (viaFunction && isSymE(t) && t.s.k === 'schema') {
       // RelationMetadata calls the function and compares the EntitySchema object itself with entity targets: never found
       this.project.report(`rt\u0000${r.target}\u0000${rel.propertyPath}`, {
@@ -727,7 +809,10 @@ class Builder {
       for (const j of joinColumns) {
         const own = inv.kind === 'entity-child' && inv.parent ? inv.parent.ownColumns : inv.ownColumns;
         const c = own.find((x) => x.propertyName === j.referencedColumnName);
-        if (c) referenced.push(c);
+        if (c) {
+          referenced.push(c);
+          this.useTargetColumn(inv, c);
+        }
         else {
           this.project.report(`rc\u0000${rel.args.target}\u0000${rel.propertyPath}`, {
             severity: 'warning', code: 'typeorm/referenced-column-not-found', file: rel.args.origin.file, line: rel.args.origin.line,
@@ -776,8 +861,8 @@ class Builder {
       columns: columns.map((c) => c.databaseName),
       referencedTable: this.tableIdOf(inv),
       referencedColumns: referenced.map((c) => c.databaseName),
-      onDelete: action(rel.args.onDelete, this.diagnostics, rel.args.origin),
-      onUpdate: action(rel.args.onUpdate, this.diagnostics, rel.args.origin),
+      onDelete: action(rel.args.onDelete, this.project, rel.args.origin),
+      onUpdate: action(rel.args.onUpdate, this.project, rel.args.origin),
       enforcement: rel.args.createForeignKeyConstraints ? 'database' : 'orm',
     });
     if (rel.relationType === 'one-to-one' && !columns.every((c) => c.primary)) ent.uniques.push({ columns });
@@ -806,6 +891,7 @@ class Builder {
     const invReferenced = !jt.inverseJoinColumns || !anyInvRef
       ? this.primaryColumns(inv)
       : jt.inverseJoinColumns.map((j) => invOwn.find((c) => c.propertyName === j.referencedColumnName)).filter((c): c is ColMeta => !!c);
+    for (const c of invReferenced) this.useTargetColumn(inv, c);
     const { naming } = this.ds;
     const name = jt.name ?? naming.joinTableName(owner.tableNameWithoutPrefix, inv.tableNameWithoutPrefix, rel.propertyPath, invRelation ? invRelation.propertyName : '');
     // EntityMetadata.build shortens a junction's name over the driver's alias limit (given names too)
@@ -818,7 +904,7 @@ class Builder {
       tableName: '',
       ...((jt.schema ?? owner.schema) ? { schema: jt.schema ?? owner.schema } : {}),
       ...((jt.database ?? owner.database) ? { database: jt.database ?? owner.database } : {}),
-      tree: [], ownColumns: [], embeddeds: [], relations: [], uniques: [], foreignKeys: [], origin: rel.args.origin,
+      tree: [], ownColumns: [], embeddeds: [], relations: [], uniques: [], foreignKeys: [], junctions: [], origin: rel.args.origin,
     };
     junction.tableName = this.ds.entityPrefix ? naming.prefixTableName(this.ds.entityPrefix, junction.tableNameWithoutPrefix) : junction.tableNameWithoutPrefix;
     const make = (ref: ColMeta, colName: string): ColMeta => {
@@ -860,15 +946,15 @@ class Builder {
     const oracleLike = this.ds.type === 'oracle';
     junction.foreignKeys.push({
       columns: cols.map((c) => c.databaseName), referencedTable: this.tableIdOf(owner), referencedColumns: referenced.map((c) => c.databaseName),
-      onDelete: action(rel.args.onDelete ?? 'CASCADE', this.diagnostics), onUpdate: action(oracleLike ? 'NO ACTION' : rel.args.onUpdate ?? 'CASCADE', this.diagnostics), enforcement,
+      onDelete: action(rel.args.onDelete ?? 'CASCADE', this.project), onUpdate: action(oracleLike ? 'NO ACTION' : rel.args.onUpdate ?? 'CASCADE', this.project), enforcement,
     });
     junction.foreignKeys.push({
       columns: invCols.map((c) => c.databaseName), referencedTable: this.tableIdOf(inv), referencedColumns: invReferenced.map((c) => c.databaseName),
-      onDelete: action(invRelation ? invRelation.args.onDelete : 'CASCADE', this.diagnostics),
-      onUpdate: action(oracleLike ? 'NO ACTION' : invRelation ? invRelation.args.onUpdate : 'CASCADE', this.diagnostics),
+      onDelete: action(invRelation ? invRelation.args.onDelete : 'CASCADE', this.project),
+      onUpdate: action(oracleLike ? 'NO ACTION' : invRelation ? invRelation.args.onUpdate : 'CASCADE', this.project),
       enforcement,
     });
-    this.junctions.push(junction);
+    owner.junctions.push(junction);
   }
 
   /** Relations of an entity (a single-table child: its own tree's). */
@@ -900,7 +986,7 @@ class Builder {
       tableNameWithoutPrefix: nameWithout,
       tableName: this.ds.entityPrefix ? naming.prefixTableName(this.ds.entityPrefix, nameWithout) : nameWithout,
       ...((schemaOpt ?? ent.schema) ? { schema: schemaOpt ?? ent.schema } : {}),
-      tree: [], ownColumns: [], embeddeds: [], relations: [], uniques: [], foreignKeys: [], origin: ent.origin,
+      tree: [], ownColumns: [], embeddeds: [], relations: [], uniques: [], foreignKeys: [], junctions: [], origin: ent.origin,
     };
     const pks = this.primaryColumns(ent);
     const cols: ColMeta[] = [];
@@ -929,10 +1015,10 @@ class Builder {
     for (const side of [anc, desc]) {
       closure.foreignKeys.push({
         columns: side.slice(0, 1).map((c) => c.databaseName), referencedTable: this.tableIdOf(ent), referencedColumns: pks.map((c) => c.databaseName),
-        onDelete: action(del, this.diagnostics), onUpdate: 'no action', enforcement: 'database',
+        onDelete: action(del, this.project), onUpdate: 'no action', enforcement: 'database',
       });
     }
-    this.junctions.push(closure);
+    ent.junctions.push(closure);
   }
 
   // ---- generated columns, uniques
@@ -943,9 +1029,9 @@ class Builder {
       const g = this.args(c.target)?.generations.find((x) => x.propertyName === c.propertyName);
       if (!g) continue;
       c.generated = g.strategy;
-      if (g.strategy === 'uuid') c.type = 'uuid';
-      else if (g.strategy === 'rowid') c.type = 'int';
-      else c.type = c.type ?? { ctor: 'Number' };
+      if (g.strategy === 'uuid') c.generatedType = 'uuid';
+      else if (g.strategy === 'rowid') c.generatedType = 'int';
+      else c.generatedType = c.type ?? { ctor: 'Number' };
     }
   }
 
@@ -1013,6 +1099,7 @@ class Builder {
         const fake: RelMeta = { args: { target: fk.target, propertyName: fk.propertyName ?? '', relationType: 'many-to-one', type: fk.type, createForeignKeyConstraints: true, origin: fk.origin }, propertyName: fk.propertyName ?? '', propertyPath: fk.propertyName ?? '', relationType: 'many-to-one', type: fk.type, entity: ent, joinColumns: [] };
         const target = this.resolveTarget(fake);
         if (!target) continue;
+        this.useTarget(target);
         const columns = this.columnsOf(ent);
         const tcols = this.columnsOf(target);
         const names = [...(fk.columnNames ?? []), ...(fk.propertyName ? [fk.propertyName] : [])];
@@ -1025,6 +1112,7 @@ class Builder {
         const byName = (list: ColMeta[], n: string): ColMeta | undefined => list.find((c) => c.propertyName === n || c.databaseName === n);
         const cols = names.map((n) => byName(columns, n));
         const refs = refNames.length ? refNames.map((n) => byName(tcols, n)) : this.primaryColumns(target);
+        for (const c of refs) if (c) this.useTargetColumn(target, c);
         if (cols.some((c) => !c) || refs.some((c) => !c)) {
           this.project.report(`fkd\u0000${fk.origin.file}\u0000${fk.origin.line}`, {
             severity: 'warning', code: 'typeorm/foreign-key-column-not-found', file: fk.origin.file, line: fk.origin.line,
@@ -1035,7 +1123,7 @@ class Builder {
         ent.foreignKeys.push({
           ...(fk.name ? { name: fk.name } : {}),
           columns: cols.map((c) => c!.databaseName), referencedTable: this.tableIdOf(target), referencedColumns: refs.map((c) => c!.databaseName),
-          onDelete: action(fk.onDelete, this.diagnostics, fk.origin), onUpdate: action(fk.onUpdate, this.diagnostics, fk.origin), enforcement: 'database',
+          onDelete: action(fk.onDelete, this.project, fk.origin), onUpdate: action(fk.onUpdate, this.project, fk.origin), enforcement: 'database',
         });
       }
     }
@@ -1069,7 +1157,7 @@ class Builder {
   private outputColumn(c: ColMeta, table: string, ormName: string | undefined): Column {
     const family = this.ds.family;
     if (c.design && c.mode !== 'virtual') this.designNotes(c, ormName ?? '');
-    const written = c.type;
+    const written = c.generatedType ?? c.type;
     const normalized = normalizeType(family, written);
     if (!isSupportedType(family, normalized, written) && written !== undefined) {
       this.project.report(`ut\u0000${c.origin.file}\u0000${c.origin.line}\u0000${c.propertyPath}`, {
@@ -1125,20 +1213,203 @@ class Builder {
     }
   }
 
-  output(): SnapshotInput {
-    const tables: TableInput[] = [];
+  /** The tables of one entity: its own, then its join and closure tables. */
+  entityTables(ent: EntMeta): TableInput[] {
+    return [this.tableOutput(ent, 'table', ent.targetName), ...ent.junctions.map((j) => this.tableOutput(j, 'implicit-join', undefined))];
+  }
+
+  views(): NonNullable<SnapshotInput['views']> {
     const views: NonNullable<SnapshotInput['views']> = [];
     for (const ent of this.entities) {
-      if (ent.kind === 'entity-child') continue;
+      if (ent.kind !== 'view') continue;
       const namespace = this.namespaceOf(ent);
-      if (ent.kind === 'view') {
-        views.push({ name: ent.tableName, ormName: ent.targetName, ...(namespace ? { namespace } : {}), origin: { file: ent.args.file, line: ent.origin.line } });
+      views.push({ name: ent.tableName, ormName: ent.targetName, ...(namespace ? { namespace } : {}), origin: { file: ent.args.file, line: ent.origin.line } });
+    }
+    return views;
+  }
+
+  resetEntities(): void {
+    this.entities = [];
+    this.entityByKey.clear();
+    this.reused.clear();
+    this.schemaArgs.clear();
+  }
+
+  /** A fingerprint of the entity set: names, kinds and inheritance (what string targets and shared tables depend on). */
+  entitySignature(): string {
+    return JSON.stringify(this.entities.map((e) => [e.key, e.kind, e.targetName, e.tableName, e.schema, e.database, e.parent?.key, e.sti, e.args.tree?.type]));
+  }
+
+  /** A target's own inputs and, through its relations, those of the entities it reaches. */
+  closure(ent: EntMeta): Tracked<void> {
+    const got = this.closureMemo.get(ent);
+    if (got) return got;
+    const placeholder: Tracked<void> = { value: undefined, deps: new Map(), diags: [] };
+    this.closureMemo.set(ent, placeholder);
+    const cached = this.reused.has(ent) ? this.cache.entities.get(ent.key)?.result : undefined;
+    const t = this.project.track(() => {
+      if (cached) {
+        for (const p of cached.deps.keys()) this.project.touch(p);
+        return;
+      }
+      if (ent.kind === 'entity-child') {
+        this.args(ent.key);
+        this.ancestors(ent.key);
+        if (ent.parent) this.touchAll(this.closure(ent.parent));
+        return;
+      }
+      const a = this.phaseA.get(ent);
+      if (a) this.touchAll(a);
+      for (const r of ent.relations) if (r.inverse) this.touchAll(this.closure(r.inverse));
+    });
+    this.closureMemo.set(ent, t);
+    return t;
+  }
+
+  /** Count every file a tracked result read as read now (without its diagnostics). */
+  touchAll(t: Tracked<void>): void {
+    for (const p of t.deps.keys()) this.project.touch(p);
+  }
+
+  /**
+   * What an entity that relates to `target` takes from it: its table, its key columns (as the
+   * join and junction columns copy them), the columns it may reference and its relations' ends.
+   * An entity's tables are taken over from the previous version only while these are the same.
+   */
+  signature(target: EntMeta): string {
+    if (target.kind === 'regular' && target.sigA !== undefined) return target.sigA;
+    let sig = this.sigMemo.get(target);
+    if (sig !== undefined) return sig;
+    const owner = target.kind === 'entity-child' && target.parent ? target.parent : target;
+    const col = (c: ColMeta): unknown[] => [c.propertyName, c.databaseName, c.type, c.length, c.precision, c.scale, c.enumValues, c.enumName, c.primary];
+    sig = JSON.stringify([
+      this.tableIdOf(target), target.tableNameWithoutPrefix, target.targetName, target.givenTableName, target.schema, target.database,
+      owner.ownColumns.filter((c) => c.primary && c.mode !== 'virtual').map(col), owner.embeddeds.map((e) => e.columns.filter((c) => c.primary).map(col)),
+      this.relationsOf(target).map((r) => [r.propertyPath, r.args.onDelete, r.args.onUpdate]),
+    ]);
+    if (target.kind === 'regular') target.sigA = sig;
+    else this.sigMemo.set(target, sig);
+    return sig;
+  }
+
+  /** A column of a target that a join column or junction column references by name. */
+  private useTargetColumn(target: EntMeta, c: ColMeta): void {
+    this.targetsUsed?.set(`${target.key}\u0001${c.propertyName}`, JSON.stringify([c.databaseName, c.type, c.length, c.precision, c.scale, c.enumValues, c.enumName]));
+  }
+
+  private columnSignature(target: EntMeta, property: string): string | undefined {
+    const owner = target.kind === 'entity-child' && target.parent ? target.parent : target;
+    const c = [...owner.ownColumns, ...owner.embeddeds.flatMap((e) => e.columns)].find((x) => x.propertyName === property && x.mode !== 'virtual');
+    return c ? JSON.stringify([c.databaseName, c.type, c.length, c.precision, c.scale, c.enumValues, c.enumName]) : undefined;
+  }
+
+  /** Whether a primary column is also the join column of one of the entity's own relations. */
+  private keyedByRelation(ent: EntMeta): boolean {
+    const pks = ent.ownColumns.filter((c) => c.primary);
+    if (pks.length === 0) return false;
+    for (const rel of ent.relations) {
+      if (rel.relationType !== 'many-to-one' && rel.relationType !== 'one-to-one') continue;
+      const names = this.joinColumnArgs(rel).map((j) => j.name).filter((n): n is string => !!n);
+      if (rel.inverse) for (const ref of this.primaryColumns(rel.inverse)) names.push(this.ds.naming.joinColumnName(rel.propertyName, ref.propertyName));
+      if (pks.some((c) => names.includes(c.databaseNameWithoutPrefixes))) return true;
+    }
+    return false;
+  }
+
+  /** Phase B uses a target: its signature is recorded (and, for a key typed by its own relations, what it reaches). */
+  private useTarget(target: EntMeta): void {
+    if (target.kind === 'entity-child' && target.parent) {
+      this.project.touch(target.args.file);
+      return this.useTarget(target.parent);
+    }
+    this.targetsUsed?.set(target.key, this.signature(target));
+    if (target.keyedByRelation) this.touchAll(this.closure(target));
+  }
+
+  /** Build (or take over from the previous version) every entity's tables, in TypeORM's entity order. */
+  buildAll(): TableInput[] {
+    const regular = this.entities.filter((e) => e.kind === 'regular');
+    const fresh = new Set(regular.filter((e) => !this.reused.has(e)));
+    if (process.env.TYPEORM_DEBUG) console.error('version', this.cache.version, 'fresh', [...fresh].map((e) => e.key).join(' '));
+    const runPhaseA = (ent: EntMeta): void => {
+      this.phaseA.set(ent, this.project.track(() => {
+        this.project.touch(ent.args.file);
+        this.buildColumns(ent);
+        this.buildRelations(ent);
+        for (const rel of ent.relations) {
+          if (rel.relationType === 'one-to-many') continue;
+          const inv = this.resolveTarget(rel);
+          if (inv) rel.inverse = inv;
+        }
+        ent.keyedByRelation = this.keyedByRelation(ent);
+      }));
+    };
+    for (const ent of fresh) runPhaseA(ent);
+    for (const ent of fresh) this.signature(ent);
+    // an entity taken over whose targets now look otherwise is built again (until nothing changes)
+    for (let changed = true; changed; ) {
+      changed = false;
+      this.sigMemo.clear();
+      for (let i = 0; i < this.entities.length; i++) {
+        const old = this.entities[i]!;
+        if (!this.reused.has(old)) continue;
+        const entry = this.cache.entities.get(old.key)!;
+        let same = true;
+        for (const [k, sig] of entry.targets) {
+          const hash = k.indexOf('\u0001');
+          const t = this.entityByKey.get(hash < 0 ? k : k.slice(0, hash));
+          if (!t || (hash < 0 ? this.signature(t) : this.columnSignature(t, k.slice(hash + 1))) !== sig) {
+            same = false;
+            break;
+          }
+        }
+        if (same) continue;
+        if (process.env.TYPEORM_DEBUG) console.error('rebuild (target)', old.key);
+        const ent = this.newEntMeta(old.args);
+        this.entities[i] = ent;
+        this.entityByKey.set(ent.key, ent);
+        this.reused.delete(old);
+        this.cache.entities.delete(old.key);
+        this.nameOne(ent);
+        for (const r of this.entities) if (r.parent === old) r.parent = ent;
+        fresh.add(ent);
+        changed = true;
+      }
+      if (changed) {
+        // references to the replaced entities are resolved again
+        for (const ent of fresh) if (!this.phaseA.has(ent)) runPhaseA(ent);
+        for (const ent of fresh) for (const rel of ent.relations) if (rel.inverse) rel.inverse = this.entityByKey.get(rel.inverse.key) ?? rel.inverse;
+        for (const ent of fresh) this.signature(ent);
+      }
+    }
+    const tables: TableInput[] = [];
+    for (const ent of this.entities) {
+      if (ent.kind !== 'regular') continue;
+      if (this.reused.has(ent)) {
+        const entry = this.cache.entities.get(ent.key)!;
+        this.project.replay(entry.result);
+        tables.push(...entry.result.value);
         continue;
       }
-      tables.push(this.tableOutput(ent, 'table', ent.targetName));
+      const targets = new Map<string, string>();
+      this.targetsUsed = targets;
+      const result = this.project.track(() => {
+        this.project.replay(this.phaseA.get(ent)!);
+        for (const rel of ent.relations) if (rel.inverse) this.useTarget(rel.inverse);
+        // per entity, as EntityMetadataBuilder does: its join columns, then its junction tables
+        for (const rel of ent.relations) if (rel.inverse && (rel.relationType === 'many-to-one' || rel.relationType === 'one-to-one')) this.buildJoinColumns(rel);
+        for (const rel of ent.relations) if (rel.inverse && rel.relationType === 'many-to-many') this.buildJunction(rel);
+        if (ent.args.tree?.type === 'closure-table') this.buildClosure(ent);
+        this.buildUniques(ent);
+        this.buildForeignKeyDecorators(ent);
+        this.applyGenerations(ent);
+        return this.entityTables(ent);
+      });
+      this.targetsUsed = null;
+      this.cache.entities.set(ent.key, { ent, result, targets });
+      tables.push(...result.value);
     }
-    for (const j of this.junctions) tables.push(this.tableOutput(j, 'implicit-join', undefined));
-    return { tables, views };
+    return tables;
   }
 
   private tableOutput(ent: EntMeta, kind: 'table' | 'implicit-join', ormName: string | undefined): TableInput {
@@ -1214,48 +1485,80 @@ function generatedKind(s: string | undefined): GeneratedKind | undefined {
   }
 }
 
-/** Build the snapshot of one version from the facts of its files. */
-export function assembleTypeorm(input: AssembleInput<TypeormFileFacts>, options: AdapterOptionValues): AssembleResult {
-  const settings = readSettings(options);
-  const files = new Map<string, TypeormFileFacts>();
-  for (const f of input.files) if (f.facts) files.set(f.path, f.facts);
-  const b = new Builder(files, settings);
-  const { failed } = b.readDataSource(files);
-  if (failed) return { failed: true, diagnostics: [...settings.diagnostics, failed] };
-  b.collectEntities(files);
-  b.nameEntities();
-  const regular = b.entities.filter((e) => e.kind === 'regular');
-  for (const ent of regular) b.buildColumns(ent);
-  for (const ent of regular) b.buildRelations(ent);
-  for (const ent of regular) {
-    for (const rel of ent.relations) {
-      if (rel.relationType === 'one-to-many') continue;
-      const inv = b.resolveTarget(rel);
-      if (!inv) continue;
-      rel.inverse = inv;
+const factIds = new WeakMap<object, number>();
+let nextFactId = 1;
+const factId = (f: object | undefined): number => {
+  if (!f) return 0;
+  let id = factIds.get(f);
+  if (!id) factIds.set(f, (id = nextFactId++));
+  return id;
+};
+
+/**
+ * The assembly of a run, version after version: what a version's files share with the previous
+ * version's is taken over (each entity's tables are rebuilt only when a file they were read from
+ * changed), so that a long history costs about what its changes cost.
+ */
+export class TypeormAssembler {
+  private readonly cache = new AssemblyCache();
+  constructor(private readonly options: AdapterOptionValues) {}
+
+  assemble(input: AssembleInput<TypeormFileFacts>): AssembleResult {
+    const settings = readSettings(this.options);
+    const files = new Map<string, TypeormFileFacts>();
+    for (const f of input.files) if (f.facts) files.set(f.path, f.facts);
+    const cache = this.cache;
+    const changed = new Set<string>();
+    for (const [p, f] of files) if (cache.previous.get(p) !== f) changed.add(p);
+    for (const p of cache.previous.keys()) if (!files.has(p)) changed.add(p);
+    cache.version++;
+    cache.previous = files;
+    const b = new Builder(files, settings, cache, { version: cache.version, changed });
+    const ds = b.project.track(() => {
+      for (const [p, f] of files) if (f.configs.length > 0 || f.kind === 'tsconfig') b.project.touch(p);
+      return b.readDataSource(files);
+    });
+    // what every result depends on: the options, the paths (module resolution), the data source and tsconfig files
+    const global = JSON.stringify([settings.naming, settings.database, [...settings.decorators], [...files.keys()], [...ds.deps].map(([p, f]) => [p, typeof f === 'string' ? f : factId(f)])]);
+    if (global !== this.cache.global) {
+      this.cache.clear();
+      this.cache.global = global;
+      this.cache.entitySet = '';
     }
+    if (ds.value.failed) return { failed: true, diagnostics: [...settings.diagnostics, ds.value.failed] };
+    b.collectEntities(files);
+    b.nameEntities();
+    const entitySet = b.entitySignature();
+    if (entitySet !== this.cache.entitySet) {
+      // another entity set: nothing of the previous version's entities is taken over
+      this.cache.entities.clear();
+      this.cache.entitySet = entitySet;
+      b.resetEntities();
+      b.collectEntities(files);
+      b.nameEntities();
+    }
+    const tables = b.buildAll();
+    const views = b.views();
+    const diagnostics = [...settings.diagnostics, ...b.diagnostics, ...b.project.diagnostics];
+    for (const m of input.missing) {
+      diagnostics.push({ severity: 'warning', code: 'typeorm/file-left-out', file: m, message: `${m} could not be read; entities it declares are missing from this version` });
+    }
+    return {
+      snapshot: { tables, views },
+      diagnostics,
+      counters: {
+        entities: b.entities.filter((e) => e.kind === 'regular').length,
+        views: views.length,
+        joinTables: tables.filter((t) => t.kind === 'implicit-join').length,
+        rebuilt: b.entities.filter((e) => e.kind === 'regular' && !b.reused.has(e)).length,
+      },
+    };
   }
-  // join columns first for every entity (TypeORM creates them in entity order), then the junction tables
-  for (const ent of regular) for (const rel of ent.relations) if (rel.inverse && (rel.relationType === 'many-to-one' || rel.relationType === 'one-to-one')) b.buildJoinColumns(rel);
-  for (const ent of regular) for (const rel of ent.relations) if (rel.inverse && rel.relationType === 'many-to-many') b.buildJunction(rel);
-  for (const ent of regular) if (ent.args.tree?.type === 'closure-table') b.buildClosure(ent);
-  for (const ent of regular) b.buildUniques(ent);
-  for (const ent of regular) b.buildForeignKeyDecorators(ent);
-  for (const ent of regular) b.applyGenerations(ent);
-  const snapshot = b.output();
-  const diagnostics = [...settings.diagnostics, ...b.diagnostics, ...b.project.diagnostics];
-  for (const m of input.missing) {
-    diagnostics.push({ severity: 'warning', code: 'typeorm/file-left-out', file: m, message: `${m} could not be read; entities it declares are missing from this version` });
-  }
-  return {
-    snapshot,
-    diagnostics,
-    counters: {
-      entities: regular.length,
-      views: snapshot.views?.length ?? 0,
-      joinTables: b.junctions.length,
-    },
-  };
+}
+
+/** Build the snapshot of one version from the facts of its files (no state kept between calls). */
+export function assembleTypeorm(input: AssembleInput<TypeormFileFacts>, options: AdapterOptionValues): AssembleResult {
+  return new TypeormAssembler(options).assemble(input);
 }
 
 export { schemaKey };

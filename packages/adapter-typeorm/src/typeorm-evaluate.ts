@@ -86,6 +86,23 @@ interface FileIndex {
 }
 
 const indexMemo = new WeakMap<TypeormFileFacts, FileIndex>();
+const exportMemo = new WeakMap<TypeormFileFacts, string>();
+
+/** What a file exports and imports, by name (not what its declarations say). */
+export function exportSignature(f: TypeormFileFacts | undefined): string {
+  if (!f) return '-';
+  let sig = exportMemo.get(f);
+  if (sig === undefined) {
+    const decl = (kind: string, list: Array<{ name?: string; exported: boolean; isDefault?: boolean }>): string[] =>
+      list.map((d) => `${kind}:${d.name ?? ''}:${d.exported ? 1 : 0}${d.isDefault ? 'd' : ''}`);
+    sig = JSON.stringify([
+      ...decl('c', f.classes), ...decl('f', f.functions), ...decl('e', f.enums), ...decl('k', f.consts), ...decl('a', f.aliases), ...decl('s', f.schemas),
+      f.exports, f.imports, f.defaultExport ? 1 : 0,
+    ]);
+    exportMemo.set(f, sig);
+  }
+  return sig;
+}
 
 function indexOf(facts: TypeormFileFacts): FileIndex {
   let ix = indexMemo.get(facts);
@@ -110,23 +127,111 @@ function indexOf(facts: TypeormFileFacts): FileIndex {
   return ix;
 }
 
+/**
+ * A result computed from some files' facts, with the files it read (and the facts it found there)
+ * and the diagnostics it gave: valid in a later version as long as those files' facts are the same.
+ */
+export interface Tracked<T> {
+  value: T;
+  /** Files read, with the facts found; `exp:` entries, files whose exported names only were read, with those names. */
+  deps: Map<string, TypeormFileFacts | string | undefined>;
+  diags: Array<[string, Diagnostic]>;
+  /** The last version (a counter of the run) at which it was known to hold. */
+  checked?: number;
+}
+
+/** What changed since the previous version: lets a result known to hold then be checked against the changes only. */
+export interface VersionDelta {
+  version: number;
+  changed: ReadonlySet<string>;
+}
+
 /** The files of one version and the resolution over them. */
 export class Project {
   readonly resolver: ModuleResolver;
   readonly diagnostics: Diagnostic[] = [];
-  private readonly symMemo = new Map<string, Sym>();
-  private readonly constMemo = new Map<ConstFact, E>();
+  private readonly symMemo = new Map<string, Tracked<Sym>>();
+  private readonly constMemo = new Map<ConstFact, Tracked<E>>();
   private readonly constBusy = new Set<ConstFact>();
   private readonly tsViews = new Map<string, TsconfigView | undefined>();
   private readonly reported = new Set<string>();
+  private readonly recorders: Array<{ deps: Set<string>; diags: Array<[string, Diagnostic]> }> = [];
+  /** While set, files read only to find what they export count as read for their exported names only. */
+  private shallowDepth = 0;
 
-  constructor(readonly files: ReadonlyMap<string, TypeormFileFacts>) {
+  constructor(readonly files: ReadonlyMap<string, TypeormFileFacts>, private readonly delta?: VersionDelta) {
     const has = (p: string): boolean => files.has(p);
     this.resolver = new ModuleResolver(has, (f) => this.tsconfigFor(f));
   }
 
-  facts(file: string): TypeormFileFacts | undefined {
+  /** The facts of a file, noted as read by every computation under way. */
+  fact(file: string): TypeormFileFacts | undefined {
+    this.recorders[this.recorders.length - 1]?.deps.add(this.shallowDepth > 0 ? `exp:${file}` : file);
     return this.files.get(file);
+  }
+
+  /** Resolve names without depending on more of the files than their exports (a relation's target class, say). */
+  shallow<T>(fn: () => T): T {
+    this.shallowDepth++;
+    try {
+      return fn();
+    } finally {
+      this.shallowDepth--;
+    }
+  }
+
+  facts(file: string): TypeormFileFacts | undefined {
+    return this.fact(file);
+  }
+
+  /** Run a computation, noting the files it reads and the diagnostics it gives. */
+  track<T>(fn: () => T): Tracked<T> {
+    const rec = { deps: new Set<string>(), diags: [] as Array<[string, Diagnostic]> };
+    this.recorders.push(rec);
+    let value: T;
+    try {
+      value = fn();
+    } finally {
+      this.recorders.pop();
+    }
+    const deps = new Map<string, TypeormFileFacts | string | undefined>();
+    for (const p of rec.deps) deps.set(p, p.startsWith('exp:') ? exportSignature(this.files.get(p.slice(4))) : this.files.get(p));
+    const t: Tracked<T> = { value, deps, diags: rec.diags, ...(this.delta ? { checked: this.delta.version } : {}) };
+    this.replay(t);
+    return t;
+  }
+
+  /** Whether a tracked result still holds in this version (the files it read have the same facts). */
+  valid(t: Tracked<unknown>): boolean {
+    const d = this.delta;
+    if (d && t.checked === d.version) return true;
+    if (d && t.checked === d.version - 1) {
+      for (const p of d.changed) {
+        if (t.deps.has(p)) return false;
+        const e = t.deps.get(`exp:${p}`);
+        if (e !== undefined && e !== exportSignature(this.files.get(p))) return false;
+      }
+    } else {
+      for (const [p, f] of t.deps) {
+        if (p.startsWith('exp:') ? exportSignature(this.files.get(p.slice(4))) !== f : this.files.get(p) !== f) return false;
+      }
+    }
+    if (d) t.checked = d.version;
+    return true;
+  }
+
+  /** Take over a tracked result: its files count as read, its diagnostics as given. */
+  replay(t: Tracked<unknown>): void {
+    const r = this.recorders[this.recorders.length - 1];
+    if (r) {
+      for (const p of t.deps.keys()) r.deps.add(this.shallowDepth > 0 && !p.startsWith('exp:') ? `exp:${p}` : p);
+      r.diags.push(...t.diags);
+    } else for (const [k, d] of t.diags) this.report(k, d);
+  }
+
+  /** Count a file as read by the computation under way (without reading it). */
+  touch(file: string): void {
+    this.recorders[this.recorders.length - 1]?.deps.add(file);
   }
 
   tsconfigFor(file: string): TsconfigView | undefined {
@@ -140,6 +245,11 @@ export class Project {
 
   /** One diagnostic per key (a place and a problem) and version. */
   report(key: string, d: Diagnostic): void {
+    const r = this.recorders[this.recorders.length - 1];
+    if (r) {
+      r.diags.push([key, d]);
+      return;
+    }
     if (this.reported.has(key)) return;
     this.reported.add(key);
     this.diagnostics.push(d);
@@ -148,7 +258,7 @@ export class Project {
   // ---- symbols
 
   private declared(file: string, name: string): Sym | undefined {
-    const f = this.files.get(file);
+    const f = this.fact(file);
     if (!f) return undefined;
     const ix = indexOf(f);
     const c = ix.classes.get(name);
@@ -182,19 +292,21 @@ export class Project {
 
   /** What a name stands for in a file: its own declarations, then its imports, then globals. */
   symbol(file: string, name: string): Sym {
-    const key = `${file}\u0000${name}`;
+    // a lookup for exports only is kept apart: its result does not stand for the declarations' contents
+    const key = `${this.shallowDepth > 0 ? 1 : 0}\u0000${file}\u0000${name}`;
     let s = this.symMemo.get(key);
-    if (!s) {
-      s = this.symbolUncached(file, name, 0);
+    if (s) this.replay(s);
+    else {
+      s = this.track(() => this.symbolUncached(file, name, 0));
       this.symMemo.set(key, s);
     }
-    return s;
+    return s.value;
   }
 
   private symbolUncached(file: string, name: string, depth: number): Sym {
     const local = this.declared(file, name);
     if (local) return local;
-    const f = this.files.get(file);
+    const f = this.fact(file);
     const imp = f ? indexOf(f).imports.get(name) : undefined;
     if (imp) return this.fromModule(file, imp.from, imp.imported, depth);
     if (GLOBALS.has(name)) return { k: 'global', name };
@@ -204,7 +316,7 @@ export class Project {
   /** What a module exports under a name (declarations, export lists, re-exports, `export *`). */
   exportOf(file: string, name: string, depth = 0): Sym {
     if (depth > 16) return { k: 'unknown', name };
-    const f = this.files.get(file);
+    const f = this.fact(file);
     if (!f) return { k: 'missing', spec: file, path: file, name };
     const ix = indexOf(f);
     if (name === 'default') {
@@ -249,7 +361,7 @@ export class Project {
   exportedEntities(file: string, depth = 0, seen = new Set<string>()): Sym[] {
     if (depth > 16 || seen.has(file)) return [];
     seen.add(file);
-    const f = this.files.get(file);
+    const f = this.fact(file);
     if (!f) return [];
     const out: Sym[] = [];
     for (const c of f.classes) if (c.exported) out.push({ k: 'class', file, c });
@@ -292,13 +404,27 @@ export class Project {
 
   constValue(c: ConstFact, file: string): E {
     const got = this.constMemo.get(c);
-    if (got !== undefined || this.constMemo.has(c)) return got;
+    if (got) {
+      this.replay(got);
+      return got.value;
+    }
     if (this.constBusy.has(c)) return { $: 'unk', t: c.name };
     this.constBusy.add(c);
-    const v = this.eval(c.value, { file, frames: [], depth: 0 });
+    // a constant's value depends on its file's contents, whatever asked for it
+    const shallow = this.shallowDepth;
+    this.shallowDepth = 0;
+    let t: Tracked<E>;
+    try {
+      t = this.track(() => {
+        this.fact(file);
+        return this.eval(c.value, { file, frames: [], depth: 0 });
+      });
+    } finally {
+      this.shallowDepth = shallow;
+    }
     this.constBusy.delete(c);
-    this.constMemo.set(c, v);
-    return v;
+    this.constMemo.set(c, t);
+    return t.value;
   }
 
   member(o: E, name: string): E {

@@ -211,15 +211,64 @@ export function selectionOf(cfg: ConfigFact, configPath: string, has: (p: string
   return sel;
 }
 
+const sameScan = (a: Scan, b: Scan): boolean =>
+  a.entity === b.entity && a.typeorm === b.typeorm && !a.config && !b.config && a.imports.length === b.imports.length && a.imports.every((x, i) => x === b.imports[i]);
+
+/** The previous commit's answer: most commits change files in ways that do not change which files are read. */
+let last: { sig: string; paths: readonly string[]; blobs: Map<string, string>; result: Located } | undefined;
+
 /**
  * Locate the entity files of one commit, the files they follow (base classes, embedded classes,
  * enums, constants, custom decorators, barrels), the data source configuration and the tsconfig
- * files that govern them.
+ * files that govern them. When the paths are those of the previous commit and every changed file
+ * still declares and imports the same (by the scan of its text), the previous answer stands.
  */
 export async function locateTypeorm(tree: TreeView, req: LocateRequest): Promise<Located> {
+  const sig = JSON.stringify(req.options) + '\u0000' + (req.paths ? req.paths.join('\u0001') : '\u0002');
+  const all = tree.paths();
+  const paths = Array.isArray(all) ? (all as string[]) : [...all];
+  if (last && last.sig === sig && last.paths.length === paths.length && paths.every((p, i) => p === last!.paths[i])) {
+    const changed: Array<[string, string]> = [];
+    let same = true;
+    for (const p of paths) {
+      const b = tree.blob(p)!;
+      const old = last.blobs.get(p)!;
+      if (b === old) continue;
+      changed.push([p, b]);
+      const scans = scanMemo.get(entityDecoratorSig(req))!;
+      const before = scans?.get(old);
+      if (!before || isOrmconfigPath(p) || isTsconfigPath(p) || !SOURCE_FILE.test(p) || p.endsWith('package.json')) {
+        same = false;
+        break;
+      }
+      const text = await tree.read(p);
+      const now = text === undefined ? undefined : scanText(text, entityDecorators(req));
+      if (now) scans.set(b, now);
+      if (!now || !sameScan(before, now)) {
+        same = false;
+        break;
+      }
+    }
+    if (same) {
+      for (const [p, b] of changed) last.blobs.set(p, b);
+      return last.result;
+    }
+  }
+  const result = await locateFull(tree, req);
+  last = { sig, paths: paths.slice(), blobs: new Map(paths.map((p) => [p, tree.blob(p)!])), result };
+  return result;
+}
+
+function entityDecorators(req: LocateRequest): string[] {
   const settings = readSettings(req.options);
-  const entityDecorators = [...settings.decorators].filter(([, t]) => t === 'Entity' || t === 'ChildEntity' || t === 'ViewEntity').map(([n]) => n);
-  const sig = entityDecorators.join(',');
+  return [...settings.decorators].filter(([, t]) => t === 'Entity' || t === 'ChildEntity' || t === 'ViewEntity').map(([n]) => n);
+}
+
+const entityDecoratorSig = (req: LocateRequest): string => entityDecorators(req).join(',');
+
+async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> {
+  const decorators = entityDecorators(req);
+  const sig = decorators.join(',');
   let memo = scanMemo.get(sig);
   if (!memo) scanMemo.set(sig, (memo = new Map()));
   const scans = memo;
@@ -233,7 +282,7 @@ export async function locateTypeorm(tree: TreeView, req: LocateRequest): Promise
     let s = scans.get(blob);
     if (!s) {
       const text = await tree.read(p);
-      s = text === undefined ? { entity: false, typeorm: false, config: false, imports: [] } : scanText(text, entityDecorators);
+      s = text === undefined ? { entity: false, typeorm: false, config: false, imports: [] } : scanText(text, decorators);
       scans.set(blob, s);
     }
     return s;

@@ -62,6 +62,8 @@ export function withOrigins(t: Table, origins: TableOrigins | undefined): Table 
 /** Interns tables by storage hash and builds snapshots from adapter output or from the cache. */
 export class SnapshotStore {
   private readonly tables = new Map<string, StoredTable>();
+  /** Stored tables by the adapter's input object (see `fromInput`). */
+  private readonly byInput = new WeakMap<object, { id: string; st: StoredTable; origins: TableOrigins }>();
 
   get size(): number {
     return this.tables.size;
@@ -96,18 +98,26 @@ export class SnapshotStore {
    * of each table (aligned with `snapshot.tables`) and the tables that were new to the store.
    */
   fromInput(input: SnapshotInput): { snapshot: BuiltSnapshot; origins: TableOrigins[]; newTables: StoredTable[] } {
-    const canon = canonicalOrder(input);
-    const stored: StoredTable[] = [];
-    const origins: TableOrigins[] = [];
+    // an adapter that hands back the same table object as in an earlier version (an incremental
+    // assembly) gets its stored table without canonicalising and hashing it again
+    const entries: Array<{ id: string; st: StoredTable; origins: TableOrigins }> = [];
     const newTables: StoredTable[] = [];
-    for (const t of canon.tables) {
-      const { table, origins: o } = stripTable(t);
-      const { st, isNew } = this.intern(table);
-      stored.push(st);
-      origins.push(o);
-      if (isNew) newTables.push(st);
+    for (const t of input.tables) {
+      let e = this.byInput.get(t);
+      if (!e) {
+        const canon = canonicalOrder({ tables: [t] }).tables[0]!;
+        const { table, origins: o } = stripTable(canon);
+        const { st, isNew } = this.intern(table);
+        if (isNew) newTables.push(st);
+        e = { id: canon.id, st, origins: o };
+        this.byInput.set(t, e);
+      }
+      entries.push(e);
     }
-    const views = canon.views.map(({ origin: _o, ...v }) => v);
+    entries.sort((a, b) => (a.id < b.id ? -1 : a.id > b.id ? 1 : 0));
+    const stored = entries.map((e) => e.st);
+    const origins = entries.map((e) => e.origins);
+    const views = canonicalOrder({ tables: [], ...(input.views ? { views: input.views } : {}) }).views.map(({ origin: _o, ...v }) => v);
     return { snapshot: this.assembleSnapshot(stored, views), origins, newTables };
   }
 
