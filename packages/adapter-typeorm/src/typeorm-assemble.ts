@@ -119,6 +119,8 @@ interface EntMeta {
   sigA?: string;
   /** Its primary key includes a join column of its own relations (typed by what they reference). */
   keyedByRelation?: boolean;
+  /** Its part of the entity set's fingerprint. */
+  setSig?: string;
 }
 
 const ACTIONS: Record<string, ReferentialAction> = {
@@ -146,10 +148,16 @@ export class AssemblyCache {
   readonly ancestors = new Map<string, Tracked<string[]>>();
   readonly schemas = new Map<string, Tracked<TargetArgs | undefined>>();
   readonly entities = new Map<string, { ent: EntMeta; result: Tracked<TableInput[]>; targets: Map<string, string> }>();
+  /** Entity classes and schemas each file declares (with their arguments). */
+  readonly fileCandidates = new Map<string, Tracked<Array<{ a: TargetArgs; schemaFactKey?: string }>>>();
+  readonly classByKey = new Map<string, { file: string; cls: ClassFact }>();
+  sortedPaths: string[] = [];
+  configFiles: string[] = [];
   version = 0;
   previous = new Map<string, TypeormFileFacts>();
 
   clear(): void {
+    this.fileCandidates.clear();
     this.classArgs.clear();
     this.isEntity.clear();
     this.ancestors.clear();
@@ -162,7 +170,7 @@ class Builder {
   readonly project: Project;
   readonly reader: DecoratorReader;
   readonly diagnostics: Diagnostic[] = [];
-  private readonly classByKey = new Map<string, { file: string; cls: ClassFact }>();
+  private readonly classByKey: Map<string, { file: string; cls: ClassFact }>;
   ds!: DataSourceInfo;
   mapped!: MappedTypes;
   entities: EntMeta[] = [];
@@ -180,7 +188,19 @@ class Builder {
   constructor(files: Map<string, TypeormFileFacts>, readonly settings: TypeormSettings, readonly cache: AssemblyCache, delta?: VersionDelta) {
     this.project = new Project(files, delta);
     this.reader = new DecoratorReader(this.project, settings);
-    for (const [file, facts] of files) for (const c of facts.classes) this.classByKey.set(classKey(file, c.name), { file, cls: c });
+    // classes by key, kept by the run and brought up to date for the files that changed
+    this.classByKey = cache.classByKey;
+    const changed = delta && delta.version > 1 ? delta.changed : null;
+    if (!changed) {
+      this.classByKey.clear();
+      for (const [file, facts] of files) for (const c of facts.classes) this.classByKey.set(classKey(file, c.name), { file, cls: c });
+    } else {
+      for (const file of changed) {
+        const before = cache.previous.get(file);
+        for (const c of before?.classes ?? []) this.classByKey.delete(classKey(file, c.name));
+        for (const c of files.get(file)?.classes ?? []) this.classByKey.set(classKey(file, c.name), { file, cls: c });
+      }
+    }
   }
 
   strictOf(file: string): boolean {
@@ -264,10 +284,10 @@ class Builder {
 
   // ---- data source
 
-  readDataSource(files: Map<string, TypeormFileFacts>): { failed?: Diagnostic } {
+  readDataSource(files: Map<string, TypeormFileFacts>, configFiles: readonly string[]): { failed?: Diagnostic } {
     const configs: Array<{ file: string; cfg: ConfigFact; o: E }> = [];
-    for (const [file, facts] of [...files].sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0))) {
-      for (const cfg of facts.configs) configs.push({ file, cfg, o: this.project.eval(cfg.options, { file, frames: [], depth: 0 }) });
+    for (const file of configFiles) {
+      for (const cfg of files.get(file)!.configs) configs.push({ file, cfg, o: this.project.eval(cfg.options, { file, frames: [], depth: 0 }) });
     }
     const withType = configs.find((c) => typeof get(c.o, 'type') === 'string') ?? configs[0];
     let type = withType ? get(withType.o, 'type') : undefined;
@@ -306,8 +326,8 @@ class Builder {
       ...(typeof schema === 'string' ? { schema } : {}),
     };
     // entity selection (every configuration's, together)
-    const sources = [...files.keys()].filter((p) => files.get(p)!.kind === 'source');
     if (configs.length > 0) {
+      const sources = [...files.keys()].filter((p) => files.get(p)!.kind === 'source');
       const globs: string[] = [];
       const keys = new Set<string>();
       let open = false;
@@ -403,33 +423,13 @@ class Builder {
 
   collectEntities(files: Map<string, TypeormFileFacts>): void {
     const candidates: Array<{ a: TargetArgs; schemaFactKey?: string }> = [];
-    const sortedFiles = [...files.keys()].sort();
-    for (const file of sortedFiles) {
+    for (const file of this.cache.sortedPaths) {
       const facts = files.get(file)!;
-      for (const c of facts.classes) {
-        if (c.decorators.length === 0) continue;
-        const key = classKey(file, c.name);
-        // only classes whose class decorators are TypeORM's entity decorators are read in full
-        const isEntity = this.cached(this.cache.isEntity, key, () => {
-          this.project.touch(file);
-          const { decos } = this.reader.resolveUses(c.decorators, file);
-          return decos.some((d) => d.name === 'Entity' || d.name === 'ChildEntity' || d.name === 'ViewEntity');
-        });
-        if (!isEntity) continue;
-        const a = this.args(key)!;
-        if (a.tables.length > 0) candidates.push({ a });
-      }
-      facts.schemas.forEach((s, i) => {
-        const a = this.cached(this.cache.schemas, `${file}\u0000${i}`, () => {
-          this.project.touch(file);
-          return this.reader.readSchema(file, s);
-        });
-        if (!a) return;
-        this.schemaArgs.set(a.key, a);
-        candidates.push({ a, schemaFactKey: `schemafact:${file}#${s.line}` });
-      });
+      if (facts.classes.length === 0 && facts.schemas.length === 0) continue;
+      candidates.push(...this.cached(this.cache.fileCandidates, file, () => this.fileCandidates(file, facts)));
     }
     for (const { a, schemaFactKey } of candidates) {
+      if (a.schema) this.schemaArgs.set(a.key, a);
       if (this.ds.select && !this.ds.select.match(a.file) && !this.ds.select.keys.has(a.key) && !(schemaFactKey && this.ds.select.keys.has(schemaFactKey))) continue;
       if (a.mongo) {
         this.project.report(`mongo\u0000${a.key}`, {
@@ -477,6 +477,33 @@ class Builder {
         });
       }
     }
+  }
+
+  /** The entity classes and schemas of one file, read in full (other classes are not: their decorators are not TypeORM's). */
+  private fileCandidates(file: string, facts: TypeormFileFacts): Array<{ a: TargetArgs; schemaFactKey?: string }> {
+    this.project.touch(file);
+    const out: Array<{ a: TargetArgs; schemaFactKey?: string }> = [];
+    for (const c of facts.classes) {
+      if (c.decorators.length === 0) continue;
+      const key = classKey(file, c.name);
+      const isEntity = this.cached(this.cache.isEntity, key, () => {
+        this.project.touch(file);
+        const { decos } = this.reader.resolveUses(c.decorators, file);
+        return decos.some((d) => d.name === 'Entity' || d.name === 'ChildEntity' || d.name === 'ViewEntity');
+      });
+      if (!isEntity) continue;
+      const a = this.args(key)!;
+      if (a.tables.length > 0) out.push({ a });
+    }
+    facts.schemas.forEach((s, i) => {
+      const a = this.cached(this.cache.schemas, `${file}\u0000${i}`, () => {
+        this.project.touch(file);
+        return this.reader.readSchema(file, s);
+      });
+      if (!a) return;
+      out.push({ a, schemaFactKey: `schemafact:${file}#${s.line}` });
+    });
+    return out;
   }
 
   private newEntMeta(a: TargetArgs): EntMeta {
@@ -1237,7 +1264,12 @@ class Builder {
 
   /** A fingerprint of the entity set: names, kinds and inheritance (what string targets and shared tables depend on). */
   entitySignature(): string {
-    return JSON.stringify(this.entities.map((e) => [e.key, e.kind, e.targetName, e.tableName, e.schema, e.database, e.parent?.key, e.sti, e.args.tree?.type]));
+    let out = '';
+    for (const e of this.entities) {
+      if (e.setSig === undefined || e.kind === 'entity-child') e.setSig = JSON.stringify([e.key, e.kind, e.targetName, e.tableName, e.schema, e.database, e.parent?.key, e.sti, e.args.tree?.type]);
+      out += e.setSig + '\n';
+    }
+    return out;
   }
 
   /** A target's own inputs and, through its relations, those of the entities it reaches. */
@@ -1508,15 +1540,19 @@ export class TypeormAssembler {
     const files = new Map<string, TypeormFileFacts>();
     for (const f of input.files) if (f.facts) files.set(f.path, f.facts);
     const cache = this.cache;
-    const changed = new Set<string>();
-    for (const [p, f] of files) if (cache.previous.get(p) !== f) changed.add(p);
-    for (const p of cache.previous.keys()) if (!files.has(p)) changed.add(p);
+    const changed: string[] = [];
+    for (const [p, f] of files) if (cache.previous.get(p) !== f) changed.push(p);
+    for (const p of cache.previous.keys()) if (!files.has(p)) changed.push(p);
     cache.version++;
-    cache.previous = files;
     const b = new Builder(files, settings, cache, { version: cache.version, changed });
+    cache.previous = files;
+    // the data source and tsconfig files, kept up to date from the changed paths
+    if (cache.version === 1 || changed.some((p) => !files.has(p) || files.get(p)!.configs.length > 0 || files.get(p)!.kind === 'tsconfig' || cache.configFiles.includes(p))) {
+      cache.configFiles = [...files].filter(([, f]) => f.configs.length > 0 || f.kind === 'tsconfig').map(([p]) => p).sort();
+    }
     const ds = b.project.track(() => {
-      for (const [p, f] of files) if (f.configs.length > 0 || f.kind === 'tsconfig') b.project.touch(p);
-      return b.readDataSource(files);
+      for (const p of cache.configFiles) b.project.touch(p);
+      return b.readDataSource(files, cache.configFiles.filter((p) => files.get(p)!.configs.length > 0));
     });
     // what every result depends on: the options, the paths (module resolution), the data source and tsconfig files
     const global = JSON.stringify([settings.naming, settings.database, [...settings.decorators], [...files.keys()], [...ds.deps].map(([p, f]) => [p, typeof f === 'string' ? f : factId(f)])]);
@@ -1524,6 +1560,7 @@ export class TypeormAssembler {
       this.cache.clear();
       this.cache.global = global;
       this.cache.entitySet = '';
+      this.cache.sortedPaths = [...files.keys()].sort();
     }
     if (ds.value.failed) return { failed: true, diagnostics: [...settings.diagnostics, ds.value.failed] };
     b.collectEntities(files);

@@ -143,7 +143,8 @@ export interface Tracked<T> {
 /** What changed since the previous version: lets a result known to hold then be checked against the changes only. */
 export interface VersionDelta {
   version: number;
-  changed: ReadonlySet<string>;
+  /** Paths whose facts changed (added and removed paths included). */
+  changed: readonly string[];
 }
 
 /** The files of one version and the resolution over them. */
@@ -159,7 +160,10 @@ export class Project {
   /** While set, files read only to find what they export count as read for their exported names only. */
   private shallowDepth = 0;
 
+  private readonly expKeys: string[];
+
   constructor(readonly files: ReadonlyMap<string, TypeormFileFacts>, private readonly delta?: VersionDelta) {
+    this.expKeys = (delta?.changed ?? []).map((p) => `exp:${p}`);
     const has = (p: string): boolean => files.has(p);
     this.resolver = new ModuleResolver(has, (f) => this.tsconfigFor(f));
   }
@@ -206,9 +210,10 @@ export class Project {
     const d = this.delta;
     if (d && t.checked === d.version) return true;
     if (d && t.checked === d.version - 1) {
-      for (const p of d.changed) {
+      for (let i = 0; i < d.changed.length; i++) {
+        const p = d.changed[i]!;
         if (t.deps.has(p)) return false;
-        const e = t.deps.get(`exp:${p}`);
+        const e = t.deps.get(this.expKeys[i]!);
         if (e !== undefined && e !== exportSignature(this.files.get(p))) return false;
       }
     } else {

@@ -479,9 +479,11 @@ class Reader {
 
 const CONFIG_KEYS = ['type', 'synchronize', 'migrations', 'namingStrategy', 'database', 'host', 'url', 'autoLoadEntities', 'entityPrefix', 'subscribers', 'logging'];
 
-function hasModifier(ts: Ts, node: TsNamespace.Node, kind: TsNamespace.SyntaxKind): boolean {
-  const mods = ts.canHaveModifiers(node) ? ts.getModifiers(node) : undefined;
-  return !!mods?.some((m) => m.kind === kind);
+function hasModifier(_ts: Ts, node: TsNamespace.Node, kind: TsNamespace.SyntaxKind): boolean {
+  const mods = (node as { modifiers?: readonly TsNamespace.Node[] }).modifiers;
+  if (!mods) return false;
+  for (const m of mods) if (m.kind === kind) return true;
+  return false;
 }
 
 function decoratorsOf(r: Reader, node: TsNamespace.Node): DecoratorUse[] {
