@@ -79,6 +79,19 @@ describe('entities selected by the data source', () => {
     expect(tableNames(r)).toEqual(['member', 'tool']);
   });
 
+  it('reads the sources, not compiled output committed beside them, and follows only what a configuration names', async () => {
+    const compiled = "\"use strict\";\nconst typeorm_1 = require(\"typeorm\");\nlet Tool = class Tool {};\nTool = __decorate([(0, typeorm_1.Entity)()], Tool);\nexports.Tool = Tool;\n";
+    const r = await runAdapter({
+      'src/tool.entity.ts': ENTITY('Tool'),
+      'dist/tool.entity.js': compiled,
+      'src/container.ts': "import { createConnection, Repository } from 'typeorm';\nimport { Tool } from './tool.entity';\nimport { Mailer } from './mailer';\nimport { ToolService } from './tool.service';\nexport const boot = () => createConnection({ type: 'mysql', entities: [Tool], synchronize: false });\nexport const services = [Mailer, ToolService];\n",
+      'src/mailer.ts': 'export class Mailer {}\n',
+      'src/tool.service.ts': "import { Repository } from 'typeorm';\nimport { Tool } from './tool.entity';\nexport class ToolService { constructor(private readonly tools: Repository<Tool>) {} }\n",
+    });
+    expect(r.located.files).toEqual(['src/container.ts', 'src/tool.entity.ts']);
+    expect(r.snapshot!.tables[0]!.columns.find((c) => c.name === 'displayName')!.type).toEqual({ kind: 'string', length: 255 });
+  });
+
   it('reports a MongoDB data source as unsupported, and leaves MongoDB entities out of a relational one', async () => {
     const mongo = await runAdapter({
       'src/data-source.ts': "import { DataSource } from 'typeorm';\nexport const ds = new DataSource({ type: 'mongodb', entities: ['src/**/*.ts'] });\n",

@@ -246,7 +246,12 @@ export function compareWithOracle(snapshot: Pick<Snapshot, 'tables'> | SnapshotI
   const out: string[] = [];
   const ours = new Map<string, (typeof snapshot.tables)[number]>();
   for (const t of snapshot.tables) ours.set(t.namespace ? `${t.namespace}.${t.name}` : t.name, t);
-  const theirs = new Map(o.tables.map((t) => [t.schema && t.schema !== 'public' ? `${t.schema}.${t.name}` : t.name, t]));
+  // a table TypeORM describes twice (a join table both ends declare) is one table: the first description counts
+  const theirs = new Map<string, OracleTable>();
+  for (const t of o.tables) {
+    const k = t.schema && t.schema !== 'public' ? `${t.schema}.${t.name}` : t.name;
+    if (!theirs.has(k)) theirs.set(k, t);
+  }
   for (const k of theirs.keys()) if (!ours.has(k)) out.push(`table ${k}: TypeORM has it, the adapter does not`);
   for (const k of ours.keys()) if (!theirs.has(k)) out.push(`table ${k}: the adapter has it, TypeORM does not`);
   for (const [k, t] of theirs) {

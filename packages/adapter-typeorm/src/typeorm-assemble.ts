@@ -926,7 +926,7 @@ class Builder {
     if (this.mapped.maxAliasLength > 0 && without.length > this.mapped.maxAliasLength) without = shorten(without, { separator: '_', segmentLength: 3 });
     const junction: EntMeta = {
       key: `junction:${owner.key}#${rel.propertyPath}`,
-      targetName: '', args: owner.args, kind: 'junction', givenTableName: name,
+      targetName: `${owner.targetName}.${rel.propertyPath}`, args: owner.args, kind: 'junction', givenTableName: name,
       tableNameWithoutPrefix: without,
       tableName: '',
       ...((jt.schema ?? owner.schema) ? { schema: jt.schema ?? owner.schema } : {}),
@@ -1242,7 +1242,7 @@ class Builder {
 
   /** The tables of one entity: its own, then its join and closure tables. */
   entityTables(ent: EntMeta): TableInput[] {
-    return [this.tableOutput(ent, 'table', ent.targetName), ...ent.junctions.map((j) => this.tableOutput(j, 'implicit-join', undefined))];
+    return [this.tableOutput(ent, 'table', ent.targetName), ...ent.junctions.map((j) => this.tableOutput(j, 'implicit-join', j.targetName || undefined))];
   }
 
   views(): NonNullable<SnapshotInput['views']> {
@@ -1491,6 +1491,34 @@ class Builder {
   }
 }
 
+/**
+ * One table per physical name: two owning sides of a many-to-many relation often declare the
+ * same join table (`@JoinTable({ name })` on both ends); the database has it once. The first
+ * (in entity order) is kept; a second with other columns is a warning.
+ */
+function dedupeTables(tables: TableInput[], project: Project): TableInput[] {
+  const seen = new Map<string, TableInput>();
+  const out: TableInput[] = [];
+  for (const t of tables) {
+    const id = t.namespace ? `${t.namespace}.${t.name}` : t.name;
+    const first = seen.get(id);
+    if (!first) {
+      seen.set(id, t);
+      out.push(t);
+      continue;
+    }
+    const cols = (x: TableInput): string => x.columns.map((c) => c.name).sort().join(',');
+    const same = cols(first) === cols(t);
+    project.report(`dupjoin\u0000${id}\u0000${t.origin?.file}\u0000${t.origin?.line}`, {
+      severity: same ? 'info' : 'warning', code: 'typeorm/duplicate-table', ...(t.origin ? { file: t.origin.file, line: t.origin.line } : {}),
+      message: same
+        ? `the join table ${id} is declared again (by ${t.ormName ?? 'another relation'}), with the same columns; it is one table`
+        : `a second table ${id} (${t.ormName ?? 'a join table'}) with other columns (${cols(t)}) than the first (${cols(first)}); the first is kept`,
+    });
+  }
+  return out;
+}
+
 /** Directories above a path, nearest first (the repository root as ''). */
 function ancestorsOf(p: string): string[] {
   const out: string[] = [];
@@ -1574,7 +1602,7 @@ export class TypeormAssembler {
       b.collectEntities(files);
       b.nameEntities();
     }
-    const tables = b.buildAll();
+    const tables = dedupeTables(b.buildAll(), b.project);
     const views = b.views();
     const diagnostics = [...settings.diagnostics, ...b.diagnostics, ...b.project.diagnostics];
     for (const m of input.missing) {

@@ -1,6 +1,6 @@
 import { posix } from 'node:path';
 import type { Located, LocateRequest, TreeView } from '@schema-strata/core';
-import { readSettings } from './typeorm-config.js';
+import { readSettings, TYPEORM_DECORATORS } from './typeorm-config.js';
 import { globMatcher, isDeclarationFile, ModuleResolver, nearestTsconfig, SOURCE_FILE, tsconfigView, type TsconfigView } from './typeorm-modules.js';
 import { isOrmconfigPath, isTsconfigPath, parseTypeormFile, type ConfigFact, type TsconfigFact, type TypeormFileFacts, type Value } from './typeorm-parse.js';
 
@@ -20,11 +20,28 @@ const TEST_PATH = /(^|\/)(__tests__|__mocks__|tests?|e2e|spec)\/|\.(spec|test|e2
 interface Scan {
   /** Declares an entity (an entity decorator or an EntitySchema, in a file that imports TypeORM). */
   entity: boolean;
-  /** Imports TypeORM (then its own imports are followed in full). */
+  /** Imports TypeORM's decorators (a base class, an embedded class, custom decorators): its own imports are followed in full. */
   typeorm: boolean;
   /** May hold data source options. */
   config: boolean;
   imports: string[];
+}
+
+const DECORATOR_NAMES = new Set(TYPEORM_DECORATORS as readonly string[]);
+const TYPEORM_IMPORT_RE = /import\s+(?:type\s+)?([^;]*?)\s*from\s*['"]typeorm(?:\/[^'"]*)?['"]|(?:const|let|var)\s*\{([^}]*)\}\s*=\s*require\(\s*['"]typeorm['"]\s*\)/g;
+
+/** Whether a file imports any of TypeORM's decorators (a repository or a service importing `Repository` does not). */
+function importsDecorators(text: string): boolean {
+  for (const m of text.matchAll(TYPEORM_IMPORT_RE)) {
+    const clause = m[1] ?? m[2] ?? '';
+    if (/\*\s*as\s/.test(clause) || (m[1] !== undefined && !clause.includes('{'))) return true;
+    const inner = clause.slice(clause.indexOf('{') + 1, clause.lastIndexOf('}') < 0 ? undefined : clause.lastIndexOf('}'));
+    for (const part of inner.split(',')) {
+      const name = part.trim().replace(/^type\s+/, '').split(/\s+as\s+|\s*:\s*/)[0]!.trim();
+      if (DECORATOR_NAMES.has(name)) return true;
+    }
+  }
+  return false;
 }
 
 const IMPORT_RE = /(?:^|[^.\w$])(?:import|export)\s*(?:type\s+)?(?:[\w$*{}\s,]*?\s*from\s*)?['"]([^'"\n]+)['"]/g;
@@ -35,8 +52,9 @@ function scanText(text: string, entityDecorators: readonly string[]): Scan {
   const imports = new Set<string>();
   for (const m of text.matchAll(IMPORT_RE)) imports.add(m[1]!);
   for (const m of text.matchAll(REQUIRE_RE)) imports.add(m[1]!);
-  const typeorm = TYPEORM_RE.test(text);
-  let entity = typeorm && (/@\s*(?:[\w$]+\.)*(?:Entity|ChildEntity|ViewEntity)\s*\(/.test(text) || /\bEntitySchema\b/.test(text));
+  const fromTypeorm = TYPEORM_RE.test(text);
+  const typeorm = fromTypeorm && importsDecorators(text);
+  let entity = fromTypeorm && (/@\s*(?:[\w$]+\.)*(?:Entity|ChildEntity|ViewEntity)\s*\(/.test(text) || /\bEntitySchema\b/.test(text));
   if (!entity) for (const d of entityDecorators) if (text.includes(`@${d}`)) entity = true;
   const config = /\bentities\s*:/.test(text) || /\bautoLoadEntities\b/.test(text);
   return { entity, typeorm, config, imports: [...imports] };
@@ -387,7 +405,34 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
   // follow imports: in full from files that use TypeORM, two steps from other files
   const included = new Set<string>(roots);
   const queue: Array<{ path: string; depth: number }> = roots.map((path) => ({ path, depth: 0 }));
-  for (const c of configFiles) if (sourceOf(c)) queue.push({ path: c, depth: 1 });
+  // a configuration file's own imports are read only for the names its options use (a naming strategy class, a list of entities)
+  for (const c of configFiles) {
+    if (!sourceOf(c)) continue;
+    const facts = await factsOf(tree, c);
+    if (!facts) continue;
+    const used = new Set<string>();
+    const collect = (v: unknown): void => {
+      if (Array.isArray(v)) {
+        for (const x of v) collect(x);
+        return;
+      }
+      if (!v || typeof v !== 'object') return;
+      const val = v as Value;
+      if (val.k === 'r') used.add(val.n.split('.')[0]!);
+      for (const x of Object.values(val)) if (x && typeof x === 'object') collect(x);
+    };
+    for (const cfg of facts.configs) collect(cfg.options);
+    for (const k of facts.consts) if (used.has(k.name)) collect(k.value);
+    for (const imp of facts.imports) {
+      const names = [...imp.names.map(([local]) => local), ...(imp.def ? [imp.def] : []), ...(imp.ns ? [imp.ns] : [])];
+      if (!names.some((n) => used.has(n))) continue;
+      const r = resolver.resolve(c, imp.from);
+      if (r.kind === 'file' && !included.has(r.path)) {
+        included.add(r.path);
+        queue.push({ path: r.path, depth: 2 });
+      }
+    }
+  }
   while (queue.length > 0) {
     const { path, depth } = queue.shift()!;
     const scan = await scanOf(path);
@@ -395,6 +440,7 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
     const aware = scan.typeorm || scan.entity;
     const next = aware ? 1 : depth + 1;
     if (!aware && depth >= 2) continue;
+    // entity files and files using TypeORM's decorators are followed in full; two steps from others
     for (const spec of scan.imports) {
       const r = resolver.resolve(path, spec);
       if (r.kind !== 'file' || included.has(r.path)) continue;
