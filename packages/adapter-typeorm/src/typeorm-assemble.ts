@@ -1561,10 +1561,17 @@ const factId = (f: object | undefined): number => {
  */
 export class TypeormAssembler {
   private readonly cache = new AssemblyCache();
-  constructor(private readonly options: AdapterOptionValues) {}
+  private readonly settings: TypeormSettings;
+  private readonly settingsKey: string;
+  private pathsKey = '';
+
+  constructor(options: AdapterOptionValues) {
+    this.settings = readSettings(options);
+    this.settingsKey = JSON.stringify([this.settings.naming, this.settings.database, [...this.settings.decorators]]);
+  }
 
   assemble(input: AssembleInput<TypeormFileFacts>): AssembleResult {
-    const settings = readSettings(this.options);
+    const settings = this.settings;
     const files = new Map<string, TypeormFileFacts>();
     for (const f of input.files) if (f.facts) files.set(f.path, f.facts);
     const cache = this.cache;
@@ -1583,7 +1590,8 @@ export class TypeormAssembler {
       return b.readDataSource(files, cache.configFiles.filter((p) => files.get(p)!.configs.length > 0));
     });
     // what every result depends on: the options, the paths (module resolution), the data source and tsconfig files
-    const global = JSON.stringify([settings.naming, settings.database, [...settings.decorators], [...files.keys()], [...ds.deps].map(([p, f]) => [p, typeof f === 'string' ? f : factId(f)])]);
+    if (cache.version === 1 || changed.some((p) => !files.has(p) || !cache.sortedPaths.includes(p))) this.pathsKey = JSON.stringify([...files.keys()].sort());
+    const global = JSON.stringify([this.settingsKey, this.pathsKey, [...ds.deps].map(([p, f]) => [p, typeof f === 'string' ? f : factId(f)])]);
     if (global !== this.cache.global) {
       this.cache.clear();
       this.cache.global = global;
