@@ -1362,7 +1362,6 @@ class Builder {
   buildAll(): TableInput[] {
     const regular = this.entities.filter((e) => e.kind === 'regular');
     const fresh = new Set(regular.filter((e) => !this.reused.has(e)));
-    if (process.env.TYPEORM_DEBUG) console.error('version', this.cache.version, 'fresh', [...fresh].map((e) => e.key).join(' '));
     const runPhaseA = (ent: EntMeta): void => {
       this.phaseA.set(ent, this.project.track(() => {
         this.project.touch(ent.args.file);
@@ -1396,7 +1395,6 @@ class Builder {
           }
         }
         if (same) continue;
-        if (process.env.TYPEORM_DEBUG) console.error('rebuild (target)', old.key);
         const ent = this.newEntMeta(old.args);
         this.entities[i] = ent;
         this.entityByKey.set(ent.key, ent);
@@ -1623,7 +1621,6 @@ export class TypeormAssembler {
         entities: b.entities.filter((e) => e.kind === 'regular').length,
         views: views.length,
         joinTables: tables.filter((t) => t.kind === 'implicit-join').length,
-        rebuilt: b.entities.filter((e) => e.kind === 'regular' && !b.reused.has(e)).length,
       },
     };
   }

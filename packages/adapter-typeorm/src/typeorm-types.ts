@@ -104,11 +104,13 @@ export function normalizeType(family: DriverFamily, t: ColumnTypeRef | undefined
       if (isCtor(t, 'String')) return 'nvarchar';
       if (isCtor(t, 'Date')) return 'datetime';
       if (isCtor(t, 'Boolean')) return 'bit';
+      if (isCtor(t, 'Buffer')) return 'binary';
       if (t === 'uuid') return 'uniqueidentifier';
       if (t === 'simple-array' || t === 'simple-json') return 'ntext';
       if (t === 'simple-enum') return 'nvarchar';
       if (t === 'dec') return 'decimal';
       if (t === 'double precision') return 'float';
+      if (t === 'rowversion') return 'timestamp';
       break;
     default:
       if (isCtor(t, 'Number') || t === 'int' || t === 'int4') return 'integer';
