@@ -1,5 +1,5 @@
 export { typeormAdapter } from './typeorm-adapter.js';
-export { assembleTypeorm } from './typeorm-assemble.js';
+export { assembleTypeorm, TypeormAssembler } from './typeorm-assemble.js';
 export { locateTypeorm, TYPEORM_WATCH, sourceGlobs } from './typeorm-locate.js';
 export { parseTypeormFile, type TypeormFileFacts } from './typeorm-parse.js';
 export { TYPEORM_OPTIONS, readSettings } from './typeorm-config.js';
