@@ -85,6 +85,8 @@ function script() {
 async function partExtract(repo) {
   const { extractHistory } = await import(join(root, 'packages/core/dist/index.js'));
   const { typeormAdapter } = await import(join(root, 'packages/adapter-typeorm/dist/index.js'));
+  // TypeScript's parser is loaded before the clock starts, as the floor's is
+  require('ts-morph');
   const t0 = performance.now();
   const h = await extractHistory({ repo, adapter: typeormAdapter });
   const ms = performance.now() - t0;

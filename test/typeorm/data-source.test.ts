@@ -53,6 +53,18 @@ describe('entities selected by the data source', () => {
     expect(tableNames(r)).toEqual(['loan', 'tag', 'tool']);
   });
 
+  it('takes the files --path names (and what they follow) instead of a data source', async () => {
+    const files = {
+      'src/data-source.ts': "import { DataSource } from 'typeorm';\nexport const ds = new DataSource({ type: 'postgres', entities: ['src/**/*.ts'] });\n",
+      'src/base.ts': "import { PrimaryGeneratedColumn } from 'typeorm';\nexport abstract class Row {\n  @PrimaryGeneratedColumn()\n  id: number;\n}\n",
+      'src/a/member.ts': "import { Column, Entity } from 'typeorm';\nimport { Row } from '../base';\n@Entity()\nexport class Member extends Row {\n  @Column()\n  name: string;\n}\n",
+      'src/b/tool.ts': ENTITY('Tool'),
+    };
+    const r = await runAdapter(files, {}, ['src/a/member.ts']);
+    expect(r.located.files).toEqual(['src/a/member.ts', 'src/base.ts']);
+    expect(r.snapshot!.tables.map((t) => `${t.name}(${t.columns.map((c) => c.name).join(',')})`)).toEqual(['member(id,name)']);
+  });
+
   it('reads ormconfig.json and the TYPEORM_ENTITIES of ormconfig.env', async () => {
     const json = await runAdapter({
       'ormconfig.json': '{ "type": "postgres", "entities": ["src/model/*.ts"] }',
