@@ -9,7 +9,7 @@ import {
   type ColumnArgs, type ColumnOpts, type EmbeddedArgs, type JoinColumnOpts, type RelationArgs, type TargetArgs, type UniqueArgs,
 } from './typeorm-decorators.js';
 import {
-  get, isArrE, isFnE, isObjE, isSymE, isUnk, Project, str, symName, textOf, type E, type Sym, type Tracked, type VersionDelta,
+  exportSignature, get, isArrE, isFnE, isObjE, isSymE, isUnk, Project, str, symName, textOf, type E, type Sym, type Tracked, type VersionDelta,
 } from './typeorm-evaluate.js';
 import { globMatcher } from './typeorm-modules.js';
 import { namingRules, shorten, type NamingRules } from './typeorm-naming.js';
@@ -153,10 +153,46 @@ export class AssemblyCache {
   readonly classByKey = new Map<string, { file: string; cls: ClassFact }>();
   sortedPaths: string[] = [];
   configFiles: string[] = [];
+  /** Inverse dependency indexes: a path (or `exp:` path) to the files whose candidates, and the entities whose tables, read it. */
+  readonly candidateIndex = new Map<string, Set<string>>();
+  readonly entityIndex = new Map<string, Set<string>>();
+  /** This version's: files whose candidates and entities whose tables may have changed (every result not in them holds). */
+  dirtyFiles: Set<string> | null = null;
+  dirtyEntities: Set<string> | null = null;
+
+  index(map: Map<string, Set<string>>, t: Tracked<unknown>, key: string): void {
+    for (const d of t.deps.keys()) {
+      let set = map.get(d);
+      if (!set) map.set(d, (set = new Set()));
+      set.add(key);
+    }
+  }
+
+  /** Mark what the changed paths reach, through the indexes. */
+  markDirty(changed: readonly string[], exportsChanged: (p: string) => boolean): void {
+    const files = new Set<string>();
+    const entities = new Set<string>();
+    for (const p of changed) {
+      for (const f of this.candidateIndex.get(p) ?? []) files.add(f);
+      for (const e of this.entityIndex.get(p) ?? []) entities.add(e);
+      if (exportsChanged(p)) {
+        for (const f of this.candidateIndex.get(`exp:${p}`) ?? []) files.add(f);
+        for (const e of this.entityIndex.get(`exp:${p}`) ?? []) entities.add(e);
+      }
+      files.add(p);
+    }
+    this.dirtyFiles = files;
+    this.dirtyEntities = entities;
+  }
+
   version = 0;
   previous = new Map<string, TypeormFileFacts>();
 
   clear(): void {
+    this.candidateIndex.clear();
+    this.entityIndex.clear();
+    this.dirtyFiles = null;
+    this.dirtyEntities = null;
     this.fileCandidates.clear();
     this.classArgs.clear();
     this.isEntity.clear();
@@ -426,7 +462,18 @@ class Builder {
     for (const file of this.cache.sortedPaths) {
       const facts = files.get(file)!;
       if (facts.classes.length === 0 && facts.schemas.length === 0) continue;
-      candidates.push(...this.cached(this.cache.fileCandidates, file, () => this.fileCandidates(file, facts)));
+      const kept = this.cache.dirtyFiles && !this.cache.dirtyFiles.has(file) ? this.cache.fileCandidates.get(file) : undefined;
+      if (kept) {
+        // nothing this file's candidates read changed since the previous version
+        if (kept.diags.length > 0) this.project.replay(kept);
+        candidates.push(...kept.value);
+        continue;
+      }
+      const hit = this.cache.fileCandidates.get(file);
+      const list = this.cached(this.cache.fileCandidates, file, () => this.fileCandidates(file, facts));
+      const t = this.cache.fileCandidates.get(file)!;
+      if (t !== hit) this.cache.index(this.cache.candidateIndex, t, file);
+      candidates.push(...list);
     }
     for (const { a, schemaFactKey } of candidates) {
       if (a.schema) this.schemaArgs.set(a.key, a);
@@ -439,7 +486,8 @@ class Builder {
         continue;
       }
       const entry = this.cache.entities.get(a.key);
-      if (entry && entry.ent.args === a && this.project.valid(entry.result)) {
+      const holds = entry && entry.ent.args === a && (this.cache.dirtyEntities ? !this.cache.dirtyEntities.has(a.key) : this.project.valid(entry.result));
+      if (entry && holds) {
         this.reused.add(entry.ent);
         this.entities.push(entry.ent);
         this.entityByKey.set(a.key, entry.ent);
@@ -1417,7 +1465,7 @@ class Builder {
       if (ent.kind !== 'regular') continue;
       if (this.reused.has(ent)) {
         const entry = this.cache.entities.get(ent.key)!;
-        this.project.replay(entry.result);
+        if (entry.result.diags.length > 0) this.project.replay(entry.result);
         tables.push(...entry.result.value);
         continue;
       }
@@ -1437,6 +1485,7 @@ class Builder {
       });
       this.targetsUsed = null;
       this.cache.entities.set(ent.key, { ent, result, targets });
+      this.cache.index(this.cache.entityIndex, result, ent.key);
       tables.push(...result.value);
     }
     return tables;
@@ -1578,6 +1627,7 @@ export class TypeormAssembler {
     for (const p of cache.previous.keys()) if (!files.has(p)) changed.push(p);
     cache.version++;
     const b = new Builder(files, settings, cache, { version: cache.version, changed });
+    const previous = cache.previous;
     cache.previous = files;
     // the data source and tsconfig files, kept up to date from the changed paths
     if (cache.version === 1 || changed.some((p) => !files.has(p) || files.get(p)!.configs.length > 0 || files.get(p)!.kind === 'tsconfig' || cache.configFiles.includes(p))) {
@@ -1597,6 +1647,11 @@ export class TypeormAssembler {
       this.cache.sortedPaths = [...files.keys()].sort();
     }
     if (ds.value.failed) return { failed: true, diagnostics: [...settings.diagnostics, ds.value.failed] };
+    if (cache.version > 1 && cache.fileCandidates.size > 0) cache.markDirty(changed, (p) => exportSignature(previous.get(p)) !== exportSignature(files.get(p)));
+    else {
+      cache.dirtyFiles = null;
+      cache.dirtyEntities = null;
+    }
     b.collectEntities(files);
     b.nameEntities();
     const entitySet = b.entitySignature();
