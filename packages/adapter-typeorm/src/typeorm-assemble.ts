@@ -585,7 +585,8 @@ class Builder {
   }
 
   nameEntities(): void {
-    for (const ent of this.entities) this.nameOne(ent);
+    // an entity taken over keeps the names it was given (the naming inputs are part of the run's fingerprint)
+    for (const ent of this.entities) if (!this.reused.has(ent) || !ent.tableName) this.nameOne(ent);
     const owners = new Map<string, EntMeta>();
     const keep: EntMeta[] = [];
     for (const ent of this.entities) {
@@ -1425,8 +1426,10 @@ class Builder {
     };
     for (const ent of fresh) runPhaseA(ent);
     for (const ent of fresh) this.signature(ent);
-    // an entity taken over whose targets now look otherwise is built again (until nothing changes)
-    for (let changed = true; changed; ) {
+    // an entity taken over whose targets now look otherwise is built again (until nothing changes);
+    // only targets built again in this version can look otherwise
+    const rebuiltKeys = new Set([...fresh].map((e) => e.key));
+    for (let changed = rebuiltKeys.size > 0; changed; ) {
       changed = false;
       this.sigMemo.clear();
       for (let i = 0; i < this.entities.length; i++) {
@@ -1436,7 +1439,9 @@ class Builder {
         let same = true;
         for (const [k, sig] of entry.targets) {
           const hash = k.indexOf('\u0001');
-          const t = this.entityByKey.get(hash < 0 ? k : k.slice(0, hash));
+          const key = hash < 0 ? k : k.slice(0, hash);
+          if (!rebuiltKeys.has(key)) continue;
+          const t = this.entityByKey.get(key);
           if (!t || (hash < 0 ? this.signature(t) : this.columnSignature(t, k.slice(hash + 1))) !== sig) {
             same = false;
             break;
@@ -1451,6 +1456,7 @@ class Builder {
         this.nameOne(ent);
         for (const r of this.entities) if (r.parent === old) r.parent = ent;
         fresh.add(ent);
+        rebuiltKeys.add(ent.key);
         changed = true;
       }
       if (changed) {
