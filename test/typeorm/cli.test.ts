@@ -4,7 +4,10 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { afterAll, describe, expect, it } from 'vitest';
+import { createRequire } from 'node:module';
 import { writeRepository } from '@schema-strata/core';
+
+const require = createRequire(import.meta.url);
 
 const bin = fileURLToPath(new URL('../../packages/core/bin/schema-strata.js', import.meta.url));
 const dirs: string[] = [];
@@ -36,6 +39,13 @@ describe('the CLI with the TypeORM adapter', () => {
     const names = (d: Doc): string[] => d.snapshots[d.versions.at(-1)!.snapshot]!.tables.map((h) => d.tables[h]!.name).sort();
     expect(names(a)).toEqual(names(b));
     expect(names(a)).toContain('_TagToTool');
+    // the interchange file the TypeORM adapter gives is valid against its JSON Schema (checked by Ajv)
+    const Ajv = require('ajv/dist/2020').default as new (o: object) => { compile(s: object): ((d: unknown) => boolean) & { errors?: unknown } };
+    const addFormats = require('ajv-formats').default as (a: unknown) => void;
+    const ajv = new Ajv({ allErrors: true, strict: false });
+    addFormats(ajv);
+    const validate = ajv.compile(require('@schema-strata/core/schema/history.schema.json') as object);
+    expect(validate(a), JSON.stringify(validate.errors)).toBe(true);
   });
 
   it('takes --typeorm-naming and repeated --typeorm-decorator flags, and the same options from schema-strata.config.json', async () => {
