@@ -68,7 +68,9 @@ describe('the CLI with the TypeORM adapter', () => {
     expect(columns()).toEqual(['tool_id', 'shelf_code', 'short_label']);
     const config = join(repo, 'options.json');
     writeFileSync(config, JSON.stringify({ options: { 'typeorm-decorator': ['Code=Column'] } }));
-    expect(run('--config', config).status).toBe(0);
+    const withConfig = run("--config", config);
+    expect(withConfig.stderr).toBe("");
+    expect(withConfig.status).toBe(0);
     expect(columns()).toEqual(['toolId', 'shelfCode']);
     const bad = run('--typeorm-naming', 'camel');
     expect(bad.status).not.toBe(0);
