@@ -1,0 +1,285 @@
+import { posix } from 'node:path';
+import type {
+  AdapterOptionValues,
+  AdapterSession,
+  AssembleInput,
+  AssembleResult,
+  Diagnostic,
+  SnapshotInput,
+} from '@schema-strata/core';
+import { canonicalJson, contentHash } from '@schema-strata/core';
+import type { KnexFacts } from './knex-facts.js';
+import { knexOptions, type KnexOptions } from './knex-config.js';
+import { isKnexfile, knexfileSettings, migrationsIn, resolveImport } from './knex-locate.js';
+import { EMPTY_STATE, Replay, type FileContext, type ReplayCounters, type SchemaState, type TableState, type ViewState } from './knex-replay.js';
+import { dialectOf, type Dialect } from './knex-types.js';
+
+/** One migration (or init file) of a version, in replay order. */
+export interface PlanEntry {
+  path: string;
+  role: 'init' | 'migration';
+  /** Absent when the file never parsed (its effects are skipped). */
+  file?: FileContext;
+  /** Identity of the entry: its path, its facts and the facts of the project files it imports. */
+  key: string;
+}
+
+/** What a version's replay needs: its entries in order, the dialect, and every file by path. */
+export interface VersionPlan {
+  dialect: Dialect;
+  entries: PlanEntry[];
+  files: Map<string, FileContext>;
+  diagnostics: Diagnostic[];
+}
+
+const factsKeys = new WeakMap<object, string>();
+/** A content key of a file's facts (memoised per facts object: core hands the same object for the same blob). */
+function factsKey(facts: KnexFacts): string {
+  let k = factsKeys.get(facts);
+  if (!k) {
+    k = contentHash(canonicalJson(facts));
+    factsKeys.set(facts, k);
+  }
+  return k;
+}
+
+/** Compare two names with digit runs as numbers (`2_x` before `10_x`), then as text. */
+export function naturalCompare(a: string, b: string): number {
+  const ra = a.match(/\d+|\D+/g) ?? [];
+  const rb = b.match(/\d+|\D+/g) ?? [];
+  for (let i = 0; i < Math.min(ra.length, rb.length); i++) {
+    const x = ra[i]!;
+    const y = rb[i]!;
+    if (x === y) continue;
+    const nx = /^\d/.test(x);
+    const ny = /^\d/.test(y);
+    if (nx && ny) {
+      const d = BigInt(x) - BigInt(y);
+      if (d !== 0n) return d < 0n ? -1 : 1;
+      if (x.length !== y.length) return x.length - y.length;
+      continue;
+    }
+    return x < y ? -1 : 1;
+  }
+  if (ra.length !== rb.length) return ra.length - rb.length;
+  return a < b ? -1 : a > b ? 1 : 0;
+}
+
+const codeUnitCompare = (a: string, b: string): number => (a < b ? -1 : a > b ? 1 : 0);
+
+/**
+ * Plan the replay of one version: find the knexfile among the files (its migration settings and
+ * client), the init files, the migrations in Knex's order (lib/migrations/migrate/sources/
+ * fs-migrations.js: by file name across directories, a stable sort; each directory in turn with
+ * `sortDirsSeparately`), and the project files they import.
+ */
+export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOptions): VersionPlan {
+  const diagnostics: Diagnostic[] = [];
+  const all = input.files.map((f) => f.path);
+  const paths = new Set([...all, ...input.missing]);
+  const files = new Map<string, FileContext>();
+  for (const f of input.files) {
+    if (!f.facts) continue;
+    const imports = new Map<string, string>();
+    for (const spec of f.facts.imports) {
+      const target = resolveImport(f.path, spec, (p) => paths.has(p));
+      if (target) imports.set(spec, target);
+    }
+    files.set(f.path, { path: f.path, facts: f.facts, imports });
+  }
+  const blobOf = new Map(input.files.map((f) => [f.path, f.blob]));
+
+  const init = options.init.map((p) => posix.normalize(p).replace(/^\.\//, '')).filter((p) => paths.has(p));
+  const initSet = new Set(init);
+  const knexfile = input.files.find((f) => isKnexfile(f.path) && !initSet.has(f.path));
+  const settings = knexfile ? knexfileSettings(knexfile.facts?.config, knexfile.path, options.environment) : null;
+  for (const n of settings?.notes ?? []) diagnostics.push({ severity: 'info', code: 'knex/knexfile', file: knexfile!.path, message: n });
+
+  let dialect: Dialect = 'postgresql';
+  if (options.client) dialect = options.client;
+  else if (settings?.client) {
+    const d = dialectOf(settings.client);
+    if (d) dialect = d;
+    else diagnostics.push({ severity: 'info', code: 'knex/client-unknown', file: knexfile!.path, message: `client ${settings.client} is not one schema-strata maps; types follow PostgreSQL (set --knex-client)` });
+  }
+
+  // the migrations and the directory each comes from
+  const found: Array<{ path: string; dir: number }> = [];
+  if (settings) {
+    settings.directories.forEach((dir, di) => {
+      const got = migrationsIn(all.concat(input.missing).sort(), dir, settings.loadExtensions);
+      for (const p of got.files) if (!initSet.has(p) && p !== knexfile!.path && !found.some((x) => x.path === p)) found.push({ path: p, dir: di });
+      if (got.fromSources) {
+        diagnostics.push({ severity: 'info', code: 'knex/load-extensions', file: knexfile!.path, message: `${dir}: loadExtensions names only compiled files, which are not in the repository; the .ts sources are replayed` });
+      }
+    });
+  } else {
+    // no knexfile: every file except the init files and the helpers the others import
+    const imported = new Set<string>();
+    for (const ctx of files.values()) for (const target of ctx.imports.values()) if (target !== ctx.path) imported.add(target);
+    const dirs = [...new Set(all.concat(input.missing).map((p) => posix.dirname(p)))].sort();
+    for (const p of [...all, ...input.missing].sort()) {
+      if (initSet.has(p) || isKnexfile(p)) continue;
+      if (imported.has(p) && !files.get(p)?.facts.up) continue;
+      found.push({ path: p, dir: dirs.indexOf(posix.dirname(p)) });
+    }
+  }
+
+  const base = (p: string): string => posix.basename(p);
+  const cmp = options.order === 'natural' ? naturalCompare : codeUnitCompare;
+  found.sort((a, b) => {
+    if (settings?.sortDirsSeparately && a.dir !== b.dir) return a.dir - b.dir;
+    return cmp(base(a.path), base(b.path)) || a.dir - b.dir || codeUnitCompare(a.path, b.path);
+  });
+  const byName = new Map<string, string[]>();
+  for (const f of found) byName.set(base(f.path), [...(byName.get(base(f.path)) ?? []), f.path]);
+  for (const [name, list] of byName) {
+    if (list.length < 2) continue;
+    diagnostics.push({
+      severity: 'warning', code: 'knex/duplicate-name', file: list[1]!,
+      message: `two migrations are named ${name} (${list.join(', ')}): Knex records migrations by file name, so a database that ran one never runs the other; both are replayed here, in this order`,
+    });
+  }
+
+  const depKey = (path: string): string => {
+    // the facts of the project files this file imports, transitively
+    const seen = new Set<string>([path]);
+    const queue = [path];
+    const keys: string[] = [];
+    while (queue.length > 0) {
+      const p = queue.shift()!;
+      const ctx = files.get(p);
+      if (!ctx) continue;
+      for (const target of ctx.imports.values()) {
+        if (seen.has(target)) continue;
+        seen.add(target);
+        queue.push(target);
+        const t = files.get(target);
+        keys.push(`${target}:${t ? factsKey(t.facts) : `missing:${blobOf.get(target) ?? ''}`}`);
+      }
+    }
+    return keys.sort().join(',');
+  };
+  const entry = (path: string, role: PlanEntry['role']): PlanEntry => {
+    const file = files.get(path);
+    const own = file ? factsKey(file.facts) : `missing:${blobOf.get(path) ?? ''}`;
+    return { path, role, ...(file ? { file } : {}), key: `${role}|${path}|${own}|${file && file.facts.imports.length ? depKey(path) : ''}` };
+  };
+  const entries = [...init.map((p) => entry(p, 'init')), ...found.map((f) => entry(f.path, 'migration'))];
+  return { dialect, entries, files, diagnostics };
+}
+
+interface Step {
+  key: string;
+  state: SchemaState;
+  diagnostics: Diagnostic[];
+  counters: ReplayCounters;
+  missing: boolean;
+  role: PlanEntry['role'];
+}
+
+const tableOutput = new WeakMap<TableState, SnapshotInput['tables'][number]>();
+const viewOutput = new WeakMap<ViewState, NonNullable<SnapshotInput['views']>[number]>();
+
+/** The neutral table of a replayed table (memoised: an untouched table is the same object in the next version). */
+function toTable(t: TableState): SnapshotInput['tables'][number] {
+  let out = tableOutput.get(t);
+  if (out) return out;
+  out = {
+    id: t.id,
+    name: t.name,
+    ...(t.namespace ? { namespace: t.namespace } : {}),
+    kind: 'table',
+    columns: t.columns.map((c) => ({
+      name: c.name,
+      ...(c.id !== c.name ? { id: c.id } : {}),
+      type: c.type,
+      nativeType: c.native,
+      nullable: c.nullable,
+      ...(c.default !== undefined ? { default: c.default } : {}),
+      ...(c.generated ? { generated: c.generated } : {}),
+      origin: c.origin,
+    })),
+    primaryKey: [...t.primaryKey],
+    foreignKeys: t.foreignKeys.map((f) => ({
+      ...(f.name ? { name: f.name } : {}),
+      columns: [...f.columns],
+      referencedTable: f.refTable,
+      referencedColumns: [...f.refColumns],
+      ...(f.onDelete ? { onDelete: f.onDelete } : {}),
+      ...(f.onUpdate ? { onUpdate: f.onUpdate } : {}),
+      enforcement: 'database' as const,
+    })),
+    uniques: t.uniques.map((u) => ({ ...(u.name ? { name: u.name } : {}), columns: [...u.columns] })),
+    origin: t.origin,
+  };
+  tableOutput.set(t, out);
+  return out;
+}
+
+function toView(v: ViewState): NonNullable<SnapshotInput['views']>[number] {
+  let out = viewOutput.get(v);
+  if (!out) {
+    out = { id: v.id, name: v.name, ...(v.namespace ? { namespace: v.namespace } : {}), origin: v.origin };
+    viewOutput.set(v, out);
+  }
+  return out;
+}
+
+/**
+ * The fold of one run: the schema after each migration of the last version assembled is kept, so
+ * that a version which only appends migrations replays just those, and a version whose old
+ * migration was edited replays from that migration on (the longest common prefix of entries).
+ */
+export class KnexSession implements AdapterSession<KnexFacts> {
+  private steps: Step[] = [];
+  private dialect: Dialect | null = null;
+  /** Migrations replayed by this session (for tests and benchmarks). */
+  replayed = 0;
+
+  constructor(private readonly options: KnexOptions) {}
+
+  assemble(input: AssembleInput<KnexFacts>): AssembleResult {
+    const plan = planVersion(input, this.options);
+    if (plan.dialect !== this.dialect) {
+      this.steps = [];
+      this.dialect = plan.dialect;
+    }
+    let i = 0;
+    while (i < this.steps.length && i < plan.entries.length && this.steps[i]!.key === plan.entries[i]!.key) i++;
+    this.steps.length = i;
+    let state = i > 0 ? this.steps[i - 1]!.state : EMPTY_STATE;
+    for (let j = i; j < plan.entries.length; j++) {
+      const e = plan.entries[j]!;
+      const replay = new Replay(state, plan.dialect, plan.files);
+      if (e.file) {
+        replay.runFile(e.file, e.role);
+        this.replayed++;
+      }
+      state = replay.state();
+      this.steps.push({ key: e.key, state, diagnostics: replay.diagnostics, counters: replay.counters, missing: !e.file, role: e.role });
+    }
+    return this.result(state, plan);
+  }
+
+  private result(state: SchemaState, plan: VersionPlan): AssembleResult {
+    const diagnostics = [...plan.diagnostics];
+    const counters = { migrations: 0, skippedMigrations: 0, rawStatements: 0, rawSchemaStatements: 0, unresolved: 0 };
+    for (const s of this.steps) {
+      diagnostics.push(...s.diagnostics);
+      if (s.role === 'migration') counters.migrations++;
+      if (s.missing) counters.skippedMigrations++;
+      counters.rawStatements += s.counters.rawStatements;
+      counters.rawSchemaStatements += s.counters.rawSchemaStatements;
+      counters.unresolved += s.counters.unresolved;
+    }
+    const tables = [...state.tables.values()].map(toTable);
+    const views = [...state.views.values()].map(toView);
+    return { snapshot: { tables, views }, diagnostics, counters };
+  }
+}
+
+/** Assemble one version without a session (a fresh fold from the first migration). */
+export function assembleKnex(input: AssembleInput<KnexFacts>, options: AdapterOptionValues): AssembleResult {
+  return new KnexSession(knexOptions(options)).assemble(input);
+}
