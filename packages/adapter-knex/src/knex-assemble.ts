@@ -171,6 +171,7 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
 
 interface Step {
   key: string;
+  path: string;
   state: SchemaState;
   diagnostics: Diagnostic[];
   counters: ReplayCounters;
@@ -257,9 +258,19 @@ export class KnexSession implements AdapterSession<KnexFacts> {
         this.replayed++;
       }
       state = replay.state();
-      this.steps.push({ key: e.key, state, diagnostics: replay.diagnostics, counters: replay.counters, missing: !e.file, role: e.role });
+      this.steps.push({ key: e.key, path: e.path, state, diagnostics: replay.diagnostics, counters: replay.counters, missing: !e.file, role: e.role });
     }
     return this.result(state, plan);
+  }
+
+  /** The schema after each entry of the last version assembled: the init files, then the migrations in order. */
+  trace(): Array<{ path: string; role: PlanEntry['role']; skipped: boolean; snapshot: SnapshotInput }> {
+    return this.steps.map((s) => ({
+      path: s.path,
+      role: s.role,
+      skipped: s.missing,
+      snapshot: { tables: [...s.state.tables.values()].map(toTable), views: [...s.state.views.values()].map(toView) },
+    }));
   }
 
   private result(state: SchemaState, plan: VersionPlan): AssembleResult {
