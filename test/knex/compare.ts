@@ -149,7 +149,23 @@ export function neutralOfPg(t: DbTable, column: string): NeutralType {
       return { kind: 'json' };
     case 'uuid':
       return { kind: 'uuid' };
+    case 'ARRAY': {
+      const of = UDT[pg.udt.replace(/^_/, '')];
+      return of ? { kind: 'array', of } : { kind: 'other', raw: pg.udt };
+    }
     default:
       return { kind: 'other', raw: pg.udt };
   }
 }
+
+/** Element types of PostgreSQL arrays by their udt name (PostgreSQL manual, "Arrays"; pg_type names). */
+const UDT: Record<string, NeutralType> = {
+  text: { kind: 'text' },
+  varchar: { kind: 'string' },
+  int2: { kind: 'smallint' },
+  int4: { kind: 'integer' },
+  int8: { kind: 'bigint' },
+  bool: { kind: 'boolean' },
+  uuid: { kind: 'uuid' },
+  jsonb: { kind: 'json' },
+};

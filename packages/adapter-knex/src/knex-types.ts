@@ -165,7 +165,9 @@ export function columnType(method: string, args: ArgValue[], d: Dialect, enums?:
     case 'date':
       return { type: { kind: 'date' }, native };
     case 'time': {
-      const p = isPlainObject(a0) ? num(a0.precision ?? undefined) : num(a0);
+      // only Knex's MySQL compiler writes a precision; the others write plain `time` (Oracle: a timestamp)
+      if (d === 'oracle') return { type: { kind: 'timestamp', withZone: true }, native };
+      const p = d === 'mysql' ? (isPlainObject(a0) ? num(a0.precision ?? undefined) : num(a0)) : undefined;
       return { type: withPrecision({ kind: 'time' }, p), native };
     }
     case 'datetime':
