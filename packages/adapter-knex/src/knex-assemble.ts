@@ -43,6 +43,33 @@ function factsKey(facts: KnexFacts): string {
   return k;
 }
 
+const NO_IMPORTS: ReadonlyMap<string, string> = new Map();
+const entryMemo = new WeakMap<FileContext, PlanEntry>();
+const contexts = new WeakMap<KnexFacts, Map<string, FileContext>>();
+
+/** The replay's view of a file; reused across versions while its facts are the same and it imports nothing. */
+function fileContext(path: string, facts: KnexFacts, paths: ReadonlySet<string>): FileContext {
+  if (facts.imports.length > 0) {
+    const imports = new Map<string, string>();
+    for (const spec of facts.imports) {
+      const target = resolveImport(path, spec, (p) => paths.has(p));
+      if (target) imports.set(spec, target);
+    }
+    return { path, facts, imports };
+  }
+  let byPath = contexts.get(facts);
+  if (!byPath) {
+    byPath = new Map();
+    contexts.set(facts, byPath);
+  }
+  let ctx = byPath.get(path);
+  if (!ctx) {
+    ctx = { path, facts, imports: NO_IMPORTS };
+    byPath.set(path, ctx);
+  }
+  return ctx;
+}
+
 /** Compare two names with digit runs as numbers (`2_x` before `10_x`), then as text. */
 export function naturalCompare(a: string, b: string): number {
   const ra = a.match(/\d+|\D+/g) ?? [];
@@ -80,12 +107,7 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
   const files = new Map<string, FileContext>();
   for (const f of input.files) {
     if (!f.facts) continue;
-    const imports = new Map<string, string>();
-    for (const spec of f.facts.imports) {
-      const target = resolveImport(f.path, spec, (p) => paths.has(p));
-      if (target) imports.set(spec, target);
-    }
-    files.set(f.path, { path: f.path, facts: f.facts, imports });
+    files.set(f.path, fileContext(f.path, f.facts, paths));
   }
   const blobOf = new Map(input.files.map((f) => [f.path, f.blob]));
 
@@ -104,11 +126,18 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
   }
 
   // the migrations and the directory each comes from
-  const found: Array<{ path: string; dir: number }> = [];
+  const found: Array<{ path: string; dir: number; name: string }> = [];
+  const taken = new Set<string>([...initSet, ...(knexfile ? [knexfile.path] : [])]);
+  const take = (p: string, dir: number): void => {
+    if (taken.has(p)) return;
+    taken.add(p);
+    found.push({ path: p, dir, name: posix.basename(p) });
+  };
   if (settings) {
+    const everything = input.missing.length > 0 ? [...all, ...input.missing] : all;
     settings.directories.forEach((dir, di) => {
-      const got = migrationsIn(all.concat(input.missing).sort(), dir, settings.loadExtensions);
-      for (const p of got.files) if (!initSet.has(p) && p !== knexfile!.path && !found.some((x) => x.path === p)) found.push({ path: p, dir: di });
+      const got = migrationsIn(everything, dir, settings.loadExtensions);
+      for (const p of got.files) take(p, di);
       if (got.fromSources) {
         diagnostics.push({ severity: 'info', code: 'knex/load-extensions', file: knexfile!.path, message: `${dir}: loadExtensions names only compiled files, which are not in the repository; the .ts sources are replayed` });
       }
@@ -119,20 +148,27 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
     for (const ctx of files.values()) for (const target of ctx.imports.values()) if (target !== ctx.path) imported.add(target);
     const dirs = [...new Set(all.concat(input.missing).map((p) => posix.dirname(p)))].sort();
     for (const p of [...all, ...input.missing].sort()) {
-      if (initSet.has(p) || isKnexfile(p)) continue;
+      if (isKnexfile(p)) continue;
       if (imported.has(p) && !files.get(p)?.facts.up) continue;
-      found.push({ path: p, dir: dirs.indexOf(posix.dirname(p)) });
+      take(p, dirs.indexOf(posix.dirname(p)));
     }
   }
 
-  const base = (p: string): string => posix.basename(p);
   const cmp = options.order === 'natural' ? naturalCompare : codeUnitCompare;
-  found.sort((a, b) => {
+  const order = (a: (typeof found)[number], b: (typeof found)[number]): number => {
     if (settings?.sortDirsSeparately && a.dir !== b.dir) return a.dir - b.dir;
-    return cmp(base(a.path), base(b.path)) || a.dir - b.dir || codeUnitCompare(a.path, b.path);
-  });
+    return cmp(a.name, b.name) || a.dir - b.dir || codeUnitCompare(a.path, b.path);
+  };
+  // the files come sorted by path: within one directory that is already Knex's order by name
+  let sorted = true;
+  for (let i = 1; i < found.length && sorted; i++) if (order(found[i - 1]!, found[i]!) > 0) sorted = false;
+  if (!sorted) found.sort(order);
   const byName = new Map<string, string[]>();
-  for (const f of found) byName.set(base(f.path), [...(byName.get(base(f.path)) ?? []), f.path]);
+  for (const f of found) {
+    const list = byName.get(f.name);
+    if (list) list.push(f.path);
+    else byName.set(f.name, [f.path]);
+  }
   for (const [name, list] of byName) {
     if (list.length < 2) continue;
     diagnostics.push({
@@ -146,8 +182,8 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
     const seen = new Set<string>([path]);
     const queue = [path];
     const keys: string[] = [];
-    while (queue.length > 0) {
-      const p = queue.shift()!;
+    for (let head = 0; head < queue.length; head++) {
+      const p = queue[head]!;
       const ctx = files.get(p);
       if (!ctx) continue;
       for (const target of ctx.imports.values()) {
@@ -162,8 +198,17 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
   };
   const entry = (path: string, role: PlanEntry['role']): PlanEntry => {
     const file = files.get(path);
+    if (file && file.facts.imports.length === 0) {
+      // a file that imports nothing is the same entry in every version (its context is reused)
+      let e = entryMemo.get(file);
+      if (!e || e.role !== role) {
+        e = { path, role, file, key: `${role}|${path}|${factsKey(file.facts)}|` };
+        entryMemo.set(file, e);
+      }
+      return e;
+    }
     const own = file ? factsKey(file.facts) : `missing:${blobOf.get(path) ?? ''}`;
-    return { path, role, ...(file ? { file } : {}), key: `${role}|${path}|${own}|${file && file.facts.imports.length ? depKey(path) : ''}` };
+    return { path, role, ...(file ? { file } : {}), key: `${role}|${path}|${own}|${file ? depKey(path) : ''}` };
   };
   const entries = [...init.map((p) => entry(p, 'init')), ...found.map((f) => entry(f.path, 'migration'))];
   return { dialect, entries, files, diagnostics };
@@ -177,7 +222,19 @@ interface Step {
   counters: ReplayCounters;
   missing: boolean;
   role: PlanEntry['role'];
+  /** Diagnostics and counts of this step and every step before it. */
+  upTo: { diagnostics: Diagnostic[]; counters: VersionCounters };
 }
+
+interface VersionCounters {
+  migrations: number;
+  skippedMigrations: number;
+  rawStatements: number;
+  rawSchemaStatements: number;
+  unresolved: number;
+}
+
+const NO_COUNTS: VersionCounters = { migrations: 0, skippedMigrations: 0, rawStatements: 0, rawSchemaStatements: 0, unresolved: 0 };
 
 const tableOutput = new WeakMap<TableState, SnapshotInput['tables'][number]>();
 const viewOutput = new WeakMap<ViewState, NonNullable<SnapshotInput['views']>[number]>();
@@ -258,7 +315,19 @@ export class KnexSession implements AdapterSession<KnexFacts> {
         this.replayed++;
       }
       state = replay.state();
-      this.steps.push({ key: e.key, path: e.path, state, diagnostics: replay.diagnostics, counters: replay.counters, missing: !e.file, role: e.role });
+      const before = j > 0 ? this.steps[j - 1]!.upTo : { diagnostics: [], counters: NO_COUNTS };
+      const c = replay.counters;
+      const upTo = {
+        diagnostics: replay.diagnostics.length > 0 ? [...before.diagnostics, ...replay.diagnostics] : before.diagnostics,
+        counters: {
+          migrations: before.counters.migrations + (e.role === 'migration' ? 1 : 0),
+          skippedMigrations: before.counters.skippedMigrations + (e.file ? 0 : 1),
+          rawStatements: before.counters.rawStatements + c.rawStatements,
+          rawSchemaStatements: before.counters.rawSchemaStatements + c.rawSchemaStatements,
+          unresolved: before.counters.unresolved + c.unresolved,
+        },
+      };
+      this.steps.push({ key: e.key, path: e.path, state, diagnostics: replay.diagnostics, counters: c, missing: !e.file, role: e.role, upTo });
     }
     return this.result(state, plan);
   }
@@ -274,19 +343,11 @@ export class KnexSession implements AdapterSession<KnexFacts> {
   }
 
   private result(state: SchemaState, plan: VersionPlan): AssembleResult {
-    const diagnostics = [...plan.diagnostics];
-    const counters = { migrations: 0, skippedMigrations: 0, rawStatements: 0, rawSchemaStatements: 0, unresolved: 0 };
-    for (const s of this.steps) {
-      diagnostics.push(...s.diagnostics);
-      if (s.role === 'migration') counters.migrations++;
-      if (s.missing) counters.skippedMigrations++;
-      counters.rawStatements += s.counters.rawStatements;
-      counters.rawSchemaStatements += s.counters.rawSchemaStatements;
-      counters.unresolved += s.counters.unresolved;
-    }
+    const last = this.steps[this.steps.length - 1]?.upTo ?? { diagnostics: [], counters: NO_COUNTS };
+    const diagnostics = [...plan.diagnostics, ...last.diagnostics];
     const tables = [...state.tables.values()].map(toTable);
     const views = [...state.views.values()].map(toView);
-    return { snapshot: { tables, views }, diagnostics, counters };
+    return { snapshot: { tables, views }, diagnostics, counters: { ...last.counters } };
   }
 }
 

@@ -167,10 +167,18 @@ export function knexfileSettings(config: Val | undefined, knexfilePath: string, 
  */
 export function migrationsIn(paths: readonly string[], dir: string, loadExtensions: readonly string[]): { files: string[]; fromSources: boolean } {
   const prefix = dir === '' ? '' : dir + '/';
-  const direct = paths.filter((p) => p.startsWith(prefix) && !p.slice(prefix.length).includes('/'));
-  const files = direct.filter((p) => loadExtensions.includes(posix.extname(p)) && !/\.d\.[cm]?ts$/.test(p));
+  const files: string[] = [];
+  const sources: string[] = [];
+  for (const p of paths) {
+    if (!p.startsWith(prefix) || p.indexOf('/', prefix.length) >= 0) continue;
+    const dot = p.lastIndexOf('.');
+    if (dot <= prefix.length) continue;
+    const ext = p.slice(dot);
+    if (ext.endsWith('ts') && /\.d\.[cm]?ts$/.test(p)) continue;
+    if (loadExtensions.includes(ext)) files.push(p);
+    else if (ext === '.ts' || ext === '.mts' || ext === '.cts') sources.push(p);
+  }
   if (files.length > 0 || !loadExtensions.includes('.js')) return { files, fromSources: false };
-  const sources = direct.filter((p) => ['.ts', '.mts', '.cts'].includes(posix.extname(p)) && !/\.d\.[cm]?ts$/.test(p));
   return { files: sources, fromSources: sources.length > 0 };
 }
 
@@ -257,8 +265,8 @@ async function importClosure(tree: TreeView, start: readonly string[], skip: Rea
   const seen = new Set(start);
   const queue = [...start];
   const out: string[] = [];
-  while (queue.length > 0 && out.length < limit) {
-    const p = queue.shift()!;
+  for (let head = 0; head < queue.length && out.length < limit; head++) {
+    const p = queue[head]!;
     for (const spec of await importsOf(tree, p)) {
       const target = resolveImport(p, spec, (x) => tree.has(x));
       if (!target || seen.has(target) || skip.has(target)) continue;
