@@ -59,9 +59,10 @@ function generate(n) {
       files['knexfile.js'] = "module.exports = {\n  client: 'pg',\n  migrations: { directory: './db/migrations' },\n};\n";
     }
     const r = rnd();
-    if (r < 0.05 && migrations.length > 20) {
-      // edit an old migration: a longer string column in a table it creates
-      const m = pick(migrations.slice(0, migrations.length - 10));
+    const creators = migrations.slice(0, Math.max(0, migrations.length - 10)).filter((m) => m.creates);
+    if (r < 0.05 && creators.length > 0) {
+      // edit an old migration: a longer string column in the table it creates
+      const m = pick(creators);
       m.variant++;
       files[m.path] = renderMigration(m, m.variant);
       commits.push({ date: day(i), message: `Edit ${m.path}`, files });
@@ -80,6 +81,7 @@ function generate(n) {
       tables.push(table);
       m = {
         table: name,
+        creates: true,
         comment: `Create ${name}`,
         ops: [
           (v) =>
@@ -192,6 +194,29 @@ function naiveAt(commits, upTo) {
 
 const mb = (n) => `${(n / 1024 / 1024).toFixed(0)} MiB`;
 
+/** The Knex adapter with a clock around its own steps (locate, parseFile, the session's assemble). */
+function timedAdapter() {
+  const clock = { ms: 0 };
+  const timed = (fn) => async (...args) => {
+    const t0 = process.hrtime.bigint();
+    try {
+      return await fn(...args);
+    } finally {
+      clock.ms += Number(process.hrtime.bigint() - t0) / 1e6;
+    }
+  };
+  const adapter = {
+    ...knex,
+    locate: timed(knex.locate),
+    parseFile: timed(knex.parseFile),
+    createSession: (o) => {
+      const s = knex.createSession(o);
+      return { assemble: timed((input) => s.assemble(input)) };
+    },
+  };
+  return { adapter, clock };
+}
+
 async function main() {
   const dir = join(here, '..', '.bench', 'knex-history');
   rmSync(dir, { recursive: true, force: true });
@@ -203,13 +228,20 @@ async function main() {
   // warm-up: the parser and the replay on a few files
   naiveAt(commits, 30);
 
-  const f1 = await time(() => floor(dir));
-  const x1 = await time(() => extractHistory({ repo: dir, adapter: knex }));
-  const f2 = await time(() => floor(dir));
-  const x2 = await time(() => extractHistory({ repo: dir, adapter: knex }));
-  const floorMs = Math.min(f1.ms, f2.ms);
-  const extractMs = Math.min(x1.ms, x2.ms);
-  const history = x2.value;
+  // floor and extract, interleaved, twice each: the faster of each pair counts (the machine may be shared)
+  const runs = { floor: [], extract: [] };
+  let history = null;
+  let adapterMs = Infinity;
+  for (let k = 0; k < 2; k++) {
+    runs.floor.push((await time(() => floor(dir))).ms);
+    const { adapter, clock } = timedAdapter();
+    const x = await time(() => extractHistory({ repo: dir, adapter }));
+    runs.extract.push(x.ms);
+    if (x.ms === Math.min(...runs.extract)) adapterMs = clock.ms;
+    history = x.value;
+  }
+  const floorMs = Math.min(...runs.floor);
+  const extractMs = Math.min(...runs.extract);
   const rssAfterExtract = process.resourceUsage().maxRSS * 1024;
 
   // naive, on evenly spaced commits, scaled to all commits
@@ -217,7 +249,9 @@ async function main() {
   for (let k = 0; k < NAIVE_SAMPLE; k++) sample.push(Math.floor(((k + 0.5) * COMMITS) / NAIVE_SAMPLE));
   let naiveSampleMs = 0;
   for (const i of sample) naiveSampleMs += time(() => naiveAt(commits, i)).ms;
-  const naiveMs = (naiveSampleMs / sample.length) * COMMITS;
+  const naiveAdapterMs = (naiveSampleMs / sample.length) * history.versions.length;
+  // the naive pipeline does the same git and core work as the extract, plus its own adapter work
+  const naiveMs = naiveAdapterMs + (extractMs - adapterMs);
 
   // linear growth: the extract cut at 500, 1,000, 1,500 commits
   const cuts = [500, 1000, 1500].filter((c) => c <= COMMITS);
@@ -229,20 +263,25 @@ async function main() {
 
   const last = history.versions[history.versions.length - 1];
   const tables = history.snapshots.get(last.snapshot).tables.length;
-  console.log(`synthetic Knex history: ${COMMITS} commits, ${history.versions.length} versions, ${f2.value.blobs} distinct migration blobs, ${tables} tables at the end`);
-  console.log(`adapter work: ${history.stats.filesParsed} files parsed, ${history.stats.assembled} versions assembled`);
+  const f = await floor(dir);
+  const pad = (x, n = 8) => String(x).padStart(n);
+  console.log(`synthetic Knex history: ${COMMITS} commits, ${history.versions.length} versions, ${f.blobs} distinct migration blobs, ${tables} tables at the end`);
+  console.log(`adapter work in the extract: ${history.stats.filesParsed} files parsed (each distinct blob once), ${history.stats.assembled} versions assembled`);
   console.log('');
-  console.log('                                   time        ratio');
-  console.log(`floor (list, read, parse once)   ${floorMs.toFixed(0).padStart(7)} ms     1.00x`);
-  console.log(`extract (knex adapter)           ${extractMs.toFixed(0).padStart(7)} ms     ${(extractMs / floorMs).toFixed(2)}x the floor   (target <= 1.5x)`);
-  console.log(`naive (parse + replay per commit)${naiveMs.toFixed(0).padStart(8)} ms     ${(naiveMs / extractMs).toFixed(1)}x the extract (target >= 20x; measured on ${sample.length} of ${COMMITS} commits, scaled)`);
+  console.log('                                        time      ratio');
+  console.log(`floor (list, read, parse once)      ${pad(floorMs.toFixed(0))} ms     1.00x`);
+  console.log(`extract (knex adapter, whole run)   ${pad(extractMs.toFixed(0))} ms   ${pad((extractMs / floorMs).toFixed(2), 6)}x the floor  (target <= 1.5x)`);
+  console.log(`  of which the adapter's own steps  ${pad(adapterMs.toFixed(0))} ms   ${pad((adapterMs / floorMs).toFixed(2), 6)}x the floor`);
+  console.log(`  of which git and core             ${pad((extractMs - adapterMs).toFixed(0))} ms   ${pad(((extractMs - adapterMs) / floorMs).toFixed(2), 6)}x the floor`);
+  console.log(`naive (parse + replay every commit) ${pad(naiveMs.toFixed(0))} ms   ${pad((naiveMs / extractMs).toFixed(1), 6)}x the extract  (target >= 20x)`);
+  console.log(`  of which the adapter's own steps  ${pad(naiveAdapterMs.toFixed(0))} ms   ${pad((naiveAdapterMs / adapterMs).toFixed(1), 6)}x the extract's adapter steps (sampled on ${sample.length} commits, scaled)`);
   console.log('');
   console.log('extract cut at N commits (migrations appended; linear growth means a flat ms per commit):');
-  for (const g of growth) console.log(`  ${String(g.commits).padStart(5)} commits  ${g.ms.toFixed(0).padStart(6)} ms  ${(g.ms / g.commits).toFixed(2)} ms/commit  (${g.versions} versions)`);
+  for (const g of growth) console.log(`  ${pad(g.commits, 5)} commits  ${pad(g.ms.toFixed(0), 6)} ms  ${(g.ms / g.commits).toFixed(2)} ms/commit  (${g.versions} versions)`);
   console.log('');
   console.log(`peak memory (max RSS): ${mb(rssAfterExtract)} after the extracts, ${mb(process.resourceUsage().maxRSS * 1024)} at the end (naive included)`);
   const ok = extractMs / floorMs <= 1.5 && naiveMs / extractMs >= 20;
-  console.log(ok ? 'targets met' : 'targets NOT met');
+  console.log(ok ? 'targets met' : 'targets NOT met (see the split above: git and core take most of the extract)');
 }
 
 main().catch((e) => {

@@ -44,11 +44,20 @@ function factsKey(facts: KnexFacts): string {
 }
 
 const NO_IMPORTS: ReadonlyMap<string, string> = new Map();
+const baseNames = new Map<string, string>();
+function baseName(p: string): string {
+  let b = baseNames.get(p);
+  if (b === undefined) {
+    b = posix.basename(p);
+    baseNames.set(p, b);
+  }
+  return b;
+}
 const entryMemo = new WeakMap<FileContext, PlanEntry>();
 const contexts = new WeakMap<KnexFacts, Map<string, FileContext>>();
 
 /** The replay's view of a file; reused across versions while its facts are the same and it imports nothing. */
-function fileContext(path: string, facts: KnexFacts, paths: ReadonlySet<string>): FileContext {
+function fileContext(path: string, facts: KnexFacts, paths: { has(p: string): boolean }): FileContext {
   if (facts.imports.length > 0) {
     const imports = new Map<string, string>();
     for (const spec of facts.imports) {
@@ -103,13 +112,15 @@ const codeUnitCompare = (a: string, b: string): number => (a < b ? -1 : a > b ? 
 export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOptions): VersionPlan {
   const diagnostics: Diagnostic[] = [];
   const all = input.files.map((f) => f.path);
-  const paths = new Set([...all, ...input.missing]);
+  let pathSet: Set<string> | null = null;
+  const paths = { has: (p: string): boolean => (pathSet ??= new Set([...all, ...input.missing])).has(p) };
   const files = new Map<string, FileContext>();
   for (const f of input.files) {
     if (!f.facts) continue;
     files.set(f.path, fileContext(f.path, f.facts, paths));
   }
-  const blobOf = new Map(input.files.map((f) => [f.path, f.blob]));
+  let blobs: Map<string, string> | null = null;
+  const blobOf = (p: string): string => (blobs ??= new Map(input.files.map((f) => [f.path, f.blob]))).get(p) ?? '';
 
   const init = options.init.map((p) => posix.normalize(p).replace(/^\.\//, '')).filter((p) => paths.has(p));
   const initSet = new Set(init);
@@ -127,11 +138,14 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
 
   // the migrations and the directory each comes from
   const found: Array<{ path: string; dir: number; name: string }> = [];
+  const several = (settings?.directories.length ?? 0) > 1 || !settings;
   const taken = new Set<string>([...initSet, ...(knexfile ? [knexfile.path] : [])]);
   const take = (p: string, dir: number): void => {
-    if (taken.has(p)) return;
-    taken.add(p);
-    found.push({ path: p, dir, name: posix.basename(p) });
+    if (several || taken.size > 0) {
+      if (taken.has(p)) return;
+      if (several) taken.add(p);
+    }
+    found.push({ path: p, dir, name: baseName(p) });
   };
   if (settings) {
     const everything = input.missing.length > 0 ? [...all, ...input.missing] : all;
@@ -164,7 +178,8 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
   for (let i = 1; i < found.length && sorted; i++) if (order(found[i - 1]!, found[i]!) > 0) sorted = false;
   if (!sorted) found.sort(order);
   const byName = new Map<string, string[]>();
-  for (const f of found) {
+  // one directory cannot hold two files of one name
+  if (several) for (const f of found) {
     const list = byName.get(f.name);
     if (list) list.push(f.path);
     else byName.set(f.name, [f.path]);
@@ -191,7 +206,7 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
         seen.add(target);
         queue.push(target);
         const t = files.get(target);
-        keys.push(`${target}:${t ? factsKey(t.facts) : `missing:${blobOf.get(target) ?? ''}`}`);
+        keys.push(`${target}:${t ? factsKey(t.facts) : `missing:${blobOf(target)}`}`);
       }
     }
     return keys.sort().join(',');
@@ -207,7 +222,7 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
       }
       return e;
     }
-    const own = file ? factsKey(file.facts) : `missing:${blobOf.get(path) ?? ''}`;
+    const own = file ? factsKey(file.facts) : `missing:${blobOf(path)}`;
     return { path, role, ...(file ? { file } : {}), key: `${role}|${path}|${own}|${file ? depKey(path) : ''}` };
   };
   const entries = [...init.map((p) => entry(p, 'init')), ...found.map((f) => entry(f.path, 'migration'))];

@@ -24,7 +24,7 @@ export const SEARCHED =
   'else ./migrations next to a package.json that depends on knex';
 
 export function isKnexfile(path: string): boolean {
-  return KNEXFILE.test(posix.basename(path));
+  return path.includes('knexfile.') && KNEXFILE.test(posix.basename(path));
 }
 
 export function isSourceFile(path: string): boolean {

@@ -1,6 +1,7 @@
 import type { Diagnostic, GeneratedKind, NeutralType, Origin, ReferentialAction } from '@schema-strata/core';
 import { tableId } from '@schema-strata/core';
 import type { Arg, Chain, Cond, FnIR, KnexFacts, Param, Root, Stmt, Val } from './knex-facts.js';
+import { PMap } from './knex-pmap.js';
 import {
   argText,
   columnType,
@@ -74,13 +75,16 @@ export interface ViewState {
 
 /** The replayed schema after some migrations. Treated as immutable once a migration is done. */
 export interface SchemaState {
-  tables: ReadonlyMap<string, TableState>;
+  /** Tables by qualified physical name. */
+  tables: PMap<TableState>;
   views: ReadonlyMap<string, ViewState>;
   /** Native enum types (PostgreSQL), by qualified name. */
   enums: ReadonlyMap<string, string[]>;
+  /** Ids of live tables that differ from their name (renamed tables): id -> key. */
+  moved: ReadonlyMap<string, string>;
 }
 
-export const EMPTY_STATE: SchemaState = { tables: new Map(), views: new Map(), enums: new Map() };
+export const EMPTY_STATE: SchemaState = { tables: new PMap(), views: new Map(), enums: new Map(), moved: new Map() };
 
 export interface ReplayCounters {
   rawStatements: number;
@@ -218,9 +222,10 @@ const MAX_DEPTH = 40;
  * did not touch with the state before it, so a fold can keep the state after each migration.
  */
 export class Replay {
-  private tables: Map<string, TableState>;
+  private tables: PMap<TableState>;
   private views: Map<string, ViewState>;
   private enums: Map<string, string[]>;
+  private moved: Map<string, string>;
   private readonly own = new Set<object>();
   readonly diagnostics: Diagnostic[] = [];
   readonly counters: ReplayCounters = { rawStatements: 0, rawSchemaStatements: 0, unresolved: 0 };
@@ -232,13 +237,14 @@ export class Replay {
     private readonly dialect: Dialect,
     private readonly files: ReadonlyMap<string, FileContext>,
   ) {
-    this.tables = new Map(state.tables);
+    this.tables = new PMap(state.tables);
     this.views = new Map(state.views);
     this.enums = new Map(state.enums);
+    this.moved = new Map(state.moved);
   }
 
   state(): SchemaState {
-    return { tables: this.tables, views: this.views, enums: this.enums };
+    return { tables: this.tables, views: this.views, enums: this.enums, moved: this.moved };
   }
 
   // ---------------------------------------------------------------- entry points
@@ -637,10 +643,11 @@ export class Replay {
 
   private freshTableId(p: { ns?: string; name: string }): string {
     const base = tableId(p.name, p.ns);
-    const used = new Set([...this.tables.values()].map((t) => t.id));
-    if (!used.has(base)) return base;
+    // a live table with this name would have stopped the creation; only a renamed one can hold the id
+    const used = (id: string): boolean => this.moved.has(id) || this.tables.has(id);
+    if (!this.moved.has(base)) return base;
     let n = 2;
-    while (used.has(`${base}~${n}`)) n++;
+    while (used(`${base}~${n}`)) n++;
     this.info('knex/id-taken', `table ${base} is created while a renamed table keeps the id ${base}; the new table's id is ${base}~${n}`);
     return `${base}~${n}`;
   }
@@ -686,6 +693,8 @@ export class Replay {
         const name = this.str(args[0], 'table name', line);
         if (name === undefined) return s;
         const p = this.place(s.ns, name);
+        const dropped = this.tables.get(this.key(p));
+        if (dropped) this.moved.delete(dropped.id);
         if (!this.tables.delete(this.key(p)) && m === 'dropTable') {
           this.warn('knex/no-such-table', `dropTable: table ${this.label(p)} does not exist at this point of the replay (Knex would fail here); nothing is dropped`, line);
         }
@@ -711,6 +720,8 @@ export class Replay {
         if (pt.ns) t.namespace = pt.ns;
         else delete t.namespace;
         this.tables.set(this.key(pt), t);
+        if (t.id !== tableId(t.name, t.namespace)) this.moved.set(t.id, this.key(pt));
+        else this.moved.delete(t.id);
         return s;
       }
       case 'hasTable': {
@@ -760,7 +771,11 @@ export class Replay {
       case 'dropSchemaIfExists': {
         const ns = this.str(args[0], 'schema name', line);
         if (ns !== undefined && args[1] === true) {
-          for (const [k, t] of [...this.tables]) if (t.namespace === ns) this.tables.delete(k);
+          for (const [k, t] of [...this.tables]) {
+            if (t.namespace !== ns) continue;
+            this.tables.delete(k);
+            this.moved.delete(t.id);
+          }
         }
         return s;
       }
@@ -1005,6 +1020,7 @@ export class Replay {
     const key = this.key(p);
     this.tables.set(key, t);
     this.own.add(t);
+    if (t.id !== tableId(t.name, t.namespace)) this.moved.set(t.id, key);
     for (const cb of tb.columns) {
       if (cb.alter) continue;
       if (t.columns.some((c) => c.name === cb.name)) {
@@ -1161,7 +1177,7 @@ export class Replay {
           t.uniques = t.uniques.map((u) => ({ ...u, columns: ren(u.columns) }));
           t.foreignKeys = t.foreignKeys.map((f) => ({ ...f, columns: ren(f.columns) }));
           // foreign keys of other tables (and of this one) that point at the column follow it
-          for (const [k, other] of this.tables) {
+          for (const [k, other] of [...this.tables]) {
             if (!other.foreignKeys.some((f) => f.refTable === t.id && f.refColumns.includes(from))) continue;
             const o = other === t ? t : this.mut(k)!;
             o.foreignKeys = o.foreignKeys.map((f) => (f.refTable === t.id ? { ...f, refColumns: ren(f.refColumns) } : f));
