@@ -70,7 +70,9 @@ export type Root =
 
 /** One step of a chain: a method call, a property read (`.schema`), or a call of the root itself (`knex('t')`). */
 export interface Call {
+  /** The method or property name; `[]` for a computed one (`t[type](name)`), whose name is `key`. */
   m: string;
+  key?: Val;
   /** Absent for a property read. */
   args?: Arg[];
   line: number;
@@ -98,8 +100,11 @@ export interface Chain {
 }
 
 export type Stmt =
-  /** A chain of calls evaluated for its effect: `await knex.schema.createTable(...)`, `t.string('x')`. */
-  | { k: 'chain'; chain: Chain; line: number }
+  /**
+   * A chain of calls evaluated for its effect: `await knex.schema.createTable(...)`, `t.string('x')`.
+   * `lazy`: the statement neither awaits nor returns it (a schema builder there never runs).
+   */
+  | { k: 'chain'; chain: Chain; line: number; lazy?: true }
   | { k: 'if'; cond: Cond; then: Stmt[]; else: Stmt[]; line: number }
   /** A loop over the elements of a value (`for...of`, `forEach`, `map` inside `Promise.all`). */
   | { k: 'each'; bind: Param[]; over: Val; body: Stmt[]; line: number }

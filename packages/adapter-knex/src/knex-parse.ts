@@ -175,7 +175,7 @@ class FileCompiler {
 
   statement(st: Statement, scope: Scope, out: Stmt[]): void {
     const t = this.t;
-    if (t.isExpressionStatement(st)) this.effect(st.expression, scope, out);
+    if (t.isExpressionStatement(st)) this.effect(st.expression, scope, out, this.awaited(st.expression));
     else if (t.isReturnStatement(st)) {
       if (st.expression) this.effect(st.expression, scope, out);
     } else if (t.isVariableStatement(st)) this.variables(st.declarationList, scope, out);
@@ -425,8 +425,10 @@ class FileCompiler {
         if (t.isPropertyAccessExpression(callee)) {
           calls.unshift({ m: callee.name.text, args: e.arguments.map((a) => this.arg(a, scope)), line: this.line(callee.name) });
           e = this.unwrap(callee.expression);
-        } else if (t.isElementAccessExpression(callee) && t.isStringLiteral(callee.argumentExpression)) {
-          calls.unshift({ m: callee.argumentExpression.text, args: e.arguments.map((a) => this.arg(a, scope)), line: this.line(callee) });
+        } else if (t.isElementAccessExpression(callee)) {
+          const k = this.val(callee.argumentExpression, scope);
+          const args = e.arguments.map((a) => this.arg(a, scope));
+          calls.unshift(typeof k === 'string' ? { m: k, args, line: this.line(callee) } : { m: '[]', key: k, args, line: this.line(callee) });
           e = this.unwrap(callee.expression);
         } else if (t.isIdentifier(callee)) {
           calls.unshift({ m: '()', args: e.arguments.map((a) => this.arg(a, scope)), line: this.line(e) });
@@ -475,8 +477,20 @@ class FileCompiler {
 
   // ---------------------------------------------------------------- effects
 
-  /** Compile an expression evaluated for its effect. */
-  effect(e0: Expression, scope: Scope, out: Stmt[]): void {
+  /** Is an expression statement awaited (or yielded), so that a Knex builder in it runs? */
+  private awaited(e0: Expression): boolean {
+    const t = this.t;
+    let e = e0;
+    while (t.isParenthesizedExpression(e) || t.isAsExpression(e) || t.isNonNullExpression(e) || t.isSatisfiesExpression(e)) e = e.expression;
+    return t.isAwaitExpression(e) || t.isYieldExpression(e);
+  }
+
+  /**
+   * Compile an expression evaluated for its effect. `consumed` is false for a statement that
+   * neither awaits nor returns its value: a Knex schema builder there never runs (it runs when
+   * awaited or `then`-ed); the replay reports it and leaves it out.
+   */
+  effect(e0: Expression, scope: Scope, out: Stmt[], consumed = true): void {
     const t = this.t;
     const e = this.unwrap(e0);
     const line = this.line(e);
@@ -485,23 +499,23 @@ class FileCompiler {
       if (op === t.SyntaxKind.AmpersandAmpersandToken || op === t.SyntaxKind.BarBarToken) {
         const c = this.cond(e.left, scope);
         const body: Stmt[] = [];
-        this.effect(e.right, scope, body);
+        this.effect(e.right, scope, body, consumed);
         if (body.length === 0) return;
         const cond: Cond = op === t.SyntaxKind.BarBarToken ? { not: c } : c;
         out.push({ k: 'if', cond, then: body, else: [], line });
         return;
       }
       if (op === t.SyntaxKind.CommaToken) {
-        this.effect(e.left, scope, out);
-        this.effect(e.right, scope, out);
+        this.effect(e.left, scope, out, false);
+        this.effect(e.right, scope, out, consumed);
       }
       return;
     }
     if (t.isConditionalExpression(e)) {
       const th: Stmt[] = [];
       const el: Stmt[] = [];
-      this.effect(e.whenTrue, scope, th);
-      this.effect(e.whenFalse, scope, el);
+      this.effect(e.whenTrue, scope, th, consumed);
+      this.effect(e.whenFalse, scope, el, consumed);
       if (th.length || el.length) out.push({ k: 'if', cond: this.cond(e.condition, scope), then: th, else: el, line });
       return;
     }
@@ -597,7 +611,7 @@ class FileCompiler {
         b.stmt.chain.calls = chain.calls;
         return;
       }
-      out.push({ k: 'chain', chain, line });
+      out.push({ k: 'chain', chain, line, ...(consumed ? {} : { lazy: true as const }) });
       return;
     }
     if (kind === 'other' && rootName && e.arguments.length > 0) {
@@ -742,6 +756,7 @@ class FileCompiler {
       return { obj };
     }
     if (t.isIdentifier(e)) return this.identifierVal(e.text, scope);
+    if (e.kind === t.SyntaxKind.ThisKeyword) return { local: 'this' };
     if (t.isPropertyAccessExpression(e)) {
       const base = this.unwrap(e.expression);
       if (t.isPropertyAccessExpression(base) && t.isIdentifier(base.expression) && base.expression.text === 'process' && base.name.text === 'env') {
@@ -911,9 +926,18 @@ class FileCompiler {
       }
       exports[name] = { val: this.val(e, scope) };
     };
-    /** `module.exports = {...}` / `export default {...}`: each member is also a named export (CJS interop). */
-    const exportObject = (e0: Expression): void => {
+    /**
+     * `module.exports = {...}` (and TypeScript's `export = {...}`): each member is also a named
+     * export, as Node's CommonJS interop sees it. `export default {...}` is only the default
+     * export: Knex reads `up` from the module itself, so such a migration has no up().
+     */
+    const exportObject = (e0: Expression, commonjs: boolean): void => {
       const e = this.unwrap(e0);
+      if (t.isObjectLiteralExpression(e) && !commonjs) {
+        defaultVal = this.val(e, scope);
+        exports['default'] = { val: defaultVal };
+        return;
+      }
       if (t.isObjectLiteralExpression(e)) {
         for (const p of e.properties) {
           if (t.isPropertyAssignment(p)) {
@@ -936,7 +960,7 @@ class FileCompiler {
         const b = scope.get(e.text);
         if (b?.kind === 'fn') return exportFn('default', b.key);
         if (b?.kind === 'val') {
-          if (isObj(b.val)) for (const [k, v] of b.val.obj) if (k !== '...') exports[k] = { val: v };
+          if (commonjs && isObj(b.val)) for (const [k, v] of b.val.obj) if (k !== '...') exports[k] = { val: v };
           defaultVal = b.val;
           exports['default'] = { val: defaultVal };
           return;
@@ -983,7 +1007,7 @@ class FileCompiler {
         continue;
       }
       if (t.isExportAssignment(st)) {
-        exportObject(st.expression);
+        exportObject(st.expression, !!st.isExportEquals);
         continue;
       }
       if (t.isExportDeclaration(st)) {
@@ -1010,7 +1034,7 @@ class FileCompiler {
         if (t.isBinaryExpression(ex) && ex.operatorToken.kind === t.SyntaxKind.EqualsToken) {
           const target = this.exportTarget(ex.left);
           if (target === 'module') {
-            exportObject(ex.right);
+            exportObject(ex.right, true);
             continue;
           }
           if (target) {

@@ -167,6 +167,7 @@ class Frame {
   readonly vars = new Map<string, Runtime>();
   constructor(readonly file: FileContext, readonly parent?: Frame, readonly self?: Runtime) {}
   lookup(name: string): { found: boolean; value?: Runtime } {
+    if (name === 'this') return { found: true, value: this.thisValue() };
     for (let f: Frame | undefined = this; f; f = f.parent) {
       if (f.vars.has(name)) return { found: true, value: f.vars.get(name) };
     }
@@ -287,7 +288,7 @@ export class Replay {
   private stmt(st: Stmt, frame: Frame): void {
     switch (st.k) {
       case 'chain':
-        this.chain(st.chain, frame, st.line);
+        this.chain(st.chain, frame, st.line, st.lazy);
         return;
       case 'if': {
         const c = this.cond(st.cond, frame);
@@ -519,14 +520,29 @@ export class Replay {
 
   // ---------------------------------------------------------------- chains
 
-  private chain(ch: Chain, frame: Frame, line: number): Runtime {
+  private chain(ch: Chain, frame: Frame, line: number, lazy?: boolean): Runtime {
     const first = ch.calls[0]?.m;
     const knexish = first === 'schema' || first === 'raw' || first === 'transaction';
     let cur = this.root(ch.root, frame);
     if ((cur === undefined || cur instanceof Opaque || cur instanceof Namespace || isPlainObject(cur)) && knexish) cur = new KnexRole();
+    if (lazy && (cur instanceof SchemaRole || (cur instanceof KnexRole && ch.calls.some((c) => c.m === 'schema' || c.m === 'raw')))) {
+      const what = ch.calls.filter((c) => c.args).map((c) => c.m).join('.');
+      this.warn('knex/not-awaited', `${what}(...) is neither awaited nor returned, so Knex never runs it; it is left out`, line);
+      return undefined;
+    }
     for (const call of ch.calls) {
       if (cur === undefined || cur === null || (typeof cur !== 'object' && typeof cur !== 'boolean') || cur instanceof Opaque) return undefined;
-      cur = this.step(cur, call.m, call.args ? call.args.map((a) => this.arg(a, frame)) : undefined, call.line || line, frame);
+      let m = call.m;
+      if (m === '[]') {
+        const k = call.key === undefined ? undefined : this.value(call.key, frame);
+        if (typeof k !== 'string') {
+          this.counters.unresolved++;
+          this.warn('knex/name-unknown', `a method name (${call.key === undefined ? '?' : valText(call.key)}) is not known statically; the call is left out`, call.line || line);
+          return undefined;
+        }
+        m = k;
+      }
+      cur = this.step(cur, m, call.args ? call.args.map((a) => this.arg(a, frame)) : undefined, call.line || line, frame);
     }
     return cur;
   }
