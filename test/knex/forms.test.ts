@@ -4,6 +4,7 @@
 // methods), receivers of the builder, names from constants and imports, loops, conditions,
 // chains over statements, helpers, and builders that are never awaited (Knex never runs them).
 import { describe, expect, it } from 'vitest';
+import type { KnexFacts } from '@schema-strata/adapter-knex';
 import { replaySteps, tablesOf } from './fixture.js';
 import { runKnex } from './oracle.js';
 import { fromDatabase, fromReplay } from './compare.js';
@@ -97,7 +98,7 @@ describe('ways of writing a Knex migration (oracle: Knex 3 on better-sqlite3)', 
     const tree = new Map([['knexfile.js', KNEXFILE], ['migrations/001.mjs', text]]);
     await expect(runKnex(tree, { engine: 'sqlite', environment: 'development' })).rejects.toThrow(/must have both an up and down function/);
     const { KnexSession, knexOptions, parseKnexSource } = await import('@schema-strata/adapter-knex');
-    const files = [...tree.keys()].sort().map((path) => ({ path, blob: path, facts: (parseKnexSource(tree.get(path)!) as { facts: never }).facts }));
+    const files = [...tree.keys()].sort().map((path) => ({ path, blob: path, facts: (parseKnexSource(tree.get(path)!) as { facts: KnexFacts }).facts }));
     const r = new KnexSession(knexOptions({})).assemble({ files, missing: [] });
     expect('snapshot' in r && r.snapshot.tables).toEqual([]);
     expect(r.diagnostics.map((d) => d.code)).toContain('knex/no-up');
@@ -107,7 +108,7 @@ describe('ways of writing a Knex migration (oracle: Knex 3 on better-sqlite3)', 
     const c = CASES.find((x) => x.codes)!;
     const tree = new Map<string, string>([['knexfile.js', KNEXFILE], ...Object.entries(c.files)]);
     const { KnexSession, knexOptions, parseKnexSource } = await import('@schema-strata/adapter-knex');
-    const files = [...tree.keys()].sort().map((path) => ({ path, blob: path, facts: (parseKnexSource(tree.get(path)!) as { facts: never }).facts }));
+    const files = [...tree.keys()].sort().map((path) => ({ path, blob: path, facts: (parseKnexSource(tree.get(path)!) as { facts: KnexFacts }).facts }));
     const r = new KnexSession(knexOptions({})).assemble({ files, missing: [] });
     expect('diagnostics' in r && r.diagnostics.map((d) => `${d.code}@${d.line}`)).toEqual(['knex/not-awaited@2']);
   });

@@ -79,25 +79,30 @@ function fileContext(path: string, facts: KnexFacts, paths: { has(p: string): bo
   return ctx;
 }
 
-/** Compare two names with digit runs as numbers (`2_x` before `10_x`), then as text. */
+/** Compare two names with digit runs as numbers (`2_x` before `10_x`), the rest as text; equal ones by their text. */
 export function naturalCompare(a: string, b: string): number {
-  const ra = a.match(/\d+|\D+/g) ?? [];
-  const rb = b.match(/\d+|\D+/g) ?? [];
-  for (let i = 0; i < Math.min(ra.length, rb.length); i++) {
-    const x = ra[i]!;
-    const y = rb[i]!;
-    if (x === y) continue;
-    const nx = /^\d/.test(x);
-    const ny = /^\d/.test(y);
-    if (nx && ny) {
-      const d = BigInt(x) - BigInt(y);
+  const digit = (c: number): boolean => c >= 48 && c <= 57;
+  let i = 0;
+  let j = 0;
+  while (i < a.length && j < b.length) {
+    const ca = a.charCodeAt(i);
+    const cb = b.charCodeAt(j);
+    if (digit(ca) && digit(cb)) {
+      let ei = i;
+      let ej = j;
+      while (ei < a.length && digit(a.charCodeAt(ei))) ei++;
+      while (ej < b.length && digit(b.charCodeAt(ej))) ej++;
+      const d = BigInt(a.slice(i, ei)) - BigInt(b.slice(j, ej));
       if (d !== 0n) return d < 0n ? -1 : 1;
-      if (x.length !== y.length) return x.length - y.length;
+      i = ei;
+      j = ej;
       continue;
     }
-    return x < y ? -1 : 1;
+    if (ca !== cb) return ca - cb;
+    i++;
+    j++;
   }
-  if (ra.length !== rb.length) return ra.length - rb.length;
+  if (a.length - i !== b.length - j) return a.length - i - (b.length - j);
   return a < b ? -1 : a > b ? 1 : 0;
 }
 

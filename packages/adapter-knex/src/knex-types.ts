@@ -188,7 +188,8 @@ export function columnType(method: string, args: ArgValue[], d: Dialect, enums?:
     }
     case 'binary':
     case 'varbinary': {
-      const n = num(a0);
+      // PostgreSQL's bytea and SQLite's blob have no length
+      const n = d === 'postgresql' || d === 'sqlite' ? undefined : num(a0);
       return { type: n !== undefined ? { kind: 'binary', length: n } : { kind: 'binary' }, native };
     }
     case 'tinyblob':
