@@ -70,6 +70,22 @@ const CASES: Case[] = [
     codes: ['knex/not-awaited'],
   },
   {
+    name: 'table helpers of a models module, passed on by a spread of require() (a pattern seen in a real Knex application)',
+    files: {
+      'models/tool.model.js': "async function createToolTable(knex) {\n  if (!(await knex.schema.hasTable('tools'))) {\n    await knex.schema.createTable('tools', (t) => { t.increments('id'); t.string('name').notNullable(); });\n  }\n  const hasShelf = await knex.schema.hasColumn('tools', 'shelf');\n  if (!hasShelf) await knex.schema.alterTable('tools', (t) => { t.string('shelf', 10); });\n}\nmodule.exports = { createToolTable };\n",
+      'models/loan.model.js': "exports.createLoanTable = async (knex) => {\n  await knex.schema.createTable('loans', (t) => {\n    t.increments('id');\n    t.integer('tool_id').references('id').inTable('tools').notNullable().onDelete('CASCADE');\n  });\n};\n",
+      'models/index.js': "module.exports = {\n  ...require('./tool.model'),\n  ...require('./loan.model'),\n};\n",
+      'migrations/001_models.js': "const models = require('../models');\nasync function up(knex) {\n  await models.createToolTable(knex);\n  await models.createLoanTable(knex);\n}\nmodule.exports = { up, down: async () => {} };\n",
+    },
+  },
+  {
+    name: 'early return and a switch on a known value',
+    files: {
+      'migrations/001.js': "exports.up = (knex) => knex.schema.createTable('a', (t) => { t.increments('id'); });\nexports.down = () => {};\n",
+      'migrations/002.js': "const DB = 'sqlite';\nexports.up = async (knex) => {\n  await knex.schema.alterTable('a', (t) => {\n    switch (DB) {\n      case 'pg':\n        t.specificType('body', 'tsvector');\n        break;\n      case 'sqlite':\n      case 'mysql':\n        t.text('body');\n        break;\n      default:\n        t.string('body');\n    }\n  });\n  if (await knex.schema.hasTable('a')) return;\n  await knex.schema.createTable('never', (t) => { t.increments('id'); });\n};\nexports.down = () => {};\n",
+    },
+  },
+  {
     name: 'several migrations in file-name order, across JS and TS',
     files: {
       'migrations/20240102_b.ts': "export async function up(knex: any) { await knex.schema.alterTable('a', (t: any) => { t.renameColumn('x', 'y'); }); }\nexport async function down() {}\n",

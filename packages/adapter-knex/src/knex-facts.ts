@@ -107,9 +107,18 @@ export type Stmt =
   | { k: 'chain'; chain: Chain; line: number; lazy?: true }
   | { k: 'if'; cond: Cond; then: Stmt[]; else: Stmt[]; line: number }
   /** A loop over the elements of a value (`for...of`, `forEach`, `map` inside `Promise.all`). */
-  | { k: 'each'; bind: Param[]; over: Val; body: Stmt[]; line: number }
+  | { k: 'each'; bind: Param[]; over: Val; body: Stmt[]; line: number; /** a callback (forEach, map): its `return` ends one round only */ fn?: true }
+  /** The body of a callback run in place (`then`, an immediately invoked function): its `return` ends only the block. */
+  | { k: 'block'; body: Stmt[]; line: number }
   /** A call of a function of this file or of another project file. */
   | { k: 'invoke'; fn: FnRef; args: Arg[]; line: number }
+  /** `return` (after its value's effect): the rest of the function does not run. */
+  | { k: 'return'; line: number }
+  /** `break` (of a loop or a switch) and `continue` (of a loop). */
+  | { k: 'break'; line: number }
+  | { k: 'continue'; line: number }
+  /** A switch: the clauses from the first whose test equals the value (or `default`) run until a break. */
+  | { k: 'switch'; on: Val; cases: Array<{ test?: Val; body: Stmt[] }>; line: number }
   /** A call of a function the parse cannot see (from a package, or global): followed nowhere; a diagnostic when a builder is passed to it. */
   | { k: 'opaque'; callee: string; args: Arg[]; line: number }
   /** Something the parse could not follow; becomes a diagnostic when replayed. */
@@ -130,6 +139,8 @@ export interface KnexFacts {
   /** Functions of the file, by a file-unique key (their name; `name@line` for nested ones). */
   fns: Record<string, FnIR>;
   exports: Record<string, ExportEntry>;
+  /** Modules whose exports this one passes on (`export * from './x'`, `module.exports = { ...require('./x') }`). */
+  reexports?: string[];
   /** Relative import specifiers (`./x`, `../y.js`), in order of appearance. */
   imports: string[];
   /** The default export when it looks like a Knex configuration (knexfiles). */

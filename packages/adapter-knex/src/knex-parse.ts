@@ -152,6 +152,7 @@ class FileCompiler {
       if (t.isBlock(node.body)) this.statements(node.body.statements, scope, body);
       else this.effect(node.body as Expression, scope, body);
     }
+    if (body.length > 0 && body[body.length - 1]!.k === 'return') body.pop();
     return { params, body, ...(usesThis ? { usesThis: true } : {}), line: this.line(node) };
   }
 
@@ -178,6 +179,7 @@ class FileCompiler {
     if (t.isExpressionStatement(st)) this.effect(st.expression, scope, out, this.awaited(st.expression));
     else if (t.isReturnStatement(st)) {
       if (st.expression) this.effect(st.expression, scope, out);
+      out.push({ k: 'return', line: this.line(st) });
     } else if (t.isVariableStatement(st)) this.variables(st.declarationList, scope, out);
     else if (t.isIfStatement(st)) {
       const cond = this.cond(st.expression, scope);
@@ -198,17 +200,26 @@ class FileCompiler {
       const body: Stmt[] = [];
       this.statement(st.statement, inner, body);
       if (body.length > 0) out.push({ k: 'each', bind, over: t.isForInStatement(st) ? { keys: over } : over, body, line: this.line(st) });
-    } else if (t.isForStatement(st) || t.isWhileStatement(st) || t.isDoStatement(st) || t.isSwitchStatement(st)) {
+    } else if (t.isSwitchStatement(st)) {
+      const inner = new Scope(scope);
+      const cases = st.caseBlock.clauses.map((c) => {
+        const body: Stmt[] = [];
+        this.statements(c.statements, inner, body);
+        return t.isCaseClause(c) ? { test: this.val(c.expression, scope), body } : { body };
+      });
+      if (cases.some((c) => c.body.some((x) => x.k !== 'break'))) out.push({ k: 'switch', on: this.val(st.expression, scope), cases, line: this.line(st) });
+    } else if (t.isBreakStatement(st) && !st.label) {
+      out.push({ k: 'break', line: this.line(st) });
+    } else if (t.isContinueStatement(st) && !st.label) {
+      out.push({ k: 'continue', line: this.line(st) });
+    } else if (t.isForStatement(st) || t.isWhileStatement(st) || t.isDoStatement(st)) {
       const inner: Stmt[] = [];
-      // a loop or switch is not followed; say so only when it holds builder calls
-      const probe = new Scope(scope);
-      if (t.isForStatement(st)) this.statement(st.statement, probe, inner);
-      else if (t.isWhileStatement(st) || t.isDoStatement(st)) this.statement(st.statement, probe, inner);
-      else for (const c of st.caseBlock.clauses) this.statements(c.statements, probe, inner);
-      if (inner.length > 0) {
+      // such a loop is not followed; say so only when it holds builder calls
+      this.statement(st.statement, new Scope(scope), inner);
+      if (inner.some((x) => x.k !== 'break' && x.k !== 'continue')) {
         out.push({
           k: 'note', code: 'knex/not-followed', line: this.line(st),
-          message: `a ${t.isSwitchStatement(st) ? 'switch' : 'loop'} with builder calls is not replayed (only for...of, for...in, forEach and map over known values are)`,
+          message: 'a for, while or do loop with builder calls is not replayed (only for...of, for...in, forEach and map over known values are)',
         });
       }
     } else if (t.isFunctionDeclaration(st) || t.isEmptyStatement(st) || t.isThrowStatement(st)) {
@@ -529,7 +540,7 @@ class FileCompiler {
     // an immediately invoked function
     if (this.isFunctionNode(callee)) {
       const fn = this.compileFn(callee, scope);
-      out.push(...fn.body);
+      if (fn.body.length > 0) out.push({ k: 'block', body: fn.body, line });
       return;
     }
 
@@ -553,7 +564,7 @@ class FileCompiler {
         const cb = this.unwrap(e.arguments[0]!);
         if (this.isFunctionNode(cb)) {
           const fn = this.compileFn(cb, scope, [result]);
-          out.push(...fn.body);
+          if (fn.body.length > 0) out.push({ k: 'block', body: fn.body, line });
         } else if (t.isIdentifier(cb)) {
           const b = scope.get(cb.text);
           if (b?.kind === 'fn') {
@@ -641,12 +652,12 @@ class FileCompiler {
     const cb = this.unwrap(cb0);
     if (this.isFunctionNode(cb)) {
       const fn = this.compileFn(cb, scope);
-      if (fn.body.length > 0) out.push({ k: 'each', bind: fn.params.slice(0, 1), over, body: fn.body, line });
+      if (fn.body.length > 0) out.push({ k: 'each', bind: fn.params.slice(0, 1), over, body: fn.body, line, fn: true });
     } else if (t.isIdentifier(cb)) {
       const b = scope.get(cb.text);
       if (b?.kind === 'fn') {
         this.ensureFn(b.key);
-        out.push({ k: 'each', bind: ['$item'], over, body: [{ k: 'invoke', fn: { local: b.key }, args: [{ local: '$item' }], line }], line });
+        out.push({ k: 'each', bind: ['$item'], over, body: [{ k: 'invoke', fn: { local: b.key }, args: [{ local: '$item' }], line }], line, fn: true });
       }
     }
   }
@@ -780,6 +791,11 @@ class FileCompiler {
         if (typeof a === 'number' && typeof b === 'number') return a + b;
         return concat([a, b]);
       }
+      const cmp = [t.SyntaxKind.EqualsEqualsEqualsToken, t.SyntaxKind.EqualsEqualsToken, t.SyntaxKind.ExclamationEqualsEqualsToken, t.SyntaxKind.ExclamationEqualsToken];
+      if (cmp.includes(op)) {
+        const c = this.cond(e, scope);
+        return 'lit' in c ? c.lit : { when: c, then: true, else: false };
+      }
       if (op === t.SyntaxKind.BarBarToken || op === t.SyntaxKind.QuestionQuestionToken) {
         const a = this.val(e.left, scope);
         const b = this.val(e.right, scope);
@@ -911,6 +927,10 @@ class FileCompiler {
       if (nb && t.isNamedImports(nb)) for (const el of nb.elements) bind(el.name.text, (el.propertyName ?? el.name).text);
     }
 
+    const reexports: string[] = [];
+    const reexport = (spec: string): void => {
+      if (isRelative(spec) && !reexports.includes(spec)) reexports.push(spec);
+    };
     const exportFn = (name: string, key: string): void => {
       exports[name] = { fn: key };
     };
@@ -950,6 +970,15 @@ class FileCompiler {
           } else if (t.isMethodDeclaration(p) && p.body) {
             const k = this.propName(p.name, scope);
             if (k !== null) exportFn(k, this.registerFn(k, p, scope, false));
+          } else if (t.isSpreadAssignment(p)) {
+            // module.exports = { ...require('./a'), ...b }: a's (or b's module's) exports pass on
+            const inner = this.unwrap(p.expression);
+            const req = this.requireOf(inner);
+            if (req && req.path.length === 0) reexport(req.spec);
+            else if (t.isIdentifier(inner)) {
+              const b = scope.get(inner.text);
+              if (b?.kind === 'imp' && b.name === '*' && !b.path) reexport(b.imp);
+            }
           }
         }
         defaultVal = this.val(e, scope);
@@ -1013,6 +1042,7 @@ class FileCompiler {
       if (t.isExportDeclaration(st)) {
         const from = st.moduleSpecifier && t.isStringLiteral(st.moduleSpecifier) ? st.moduleSpecifier.text : undefined;
         if (from) this.addImport(from);
+        if (from && !st.exportClause) reexport(from);
         if (st.exportClause && t.isNamedExports(st.exportClause)) {
           for (const el of st.exportClause.elements) {
             const local = (el.propertyName ?? el.name).text;
@@ -1059,6 +1089,7 @@ class FileCompiler {
     if (main) facts.main = main;
     if (topStmts.length > 0) facts.top = topStmts;
     if (defaultVal !== undefined && looksLikeConfig(defaultVal)) facts.config = defaultVal;
+    if (reexports.length > 0) facts.reexports = reexports;
     return facts;
   }
 

@@ -125,6 +125,8 @@ interface ForeignData {
 }
 
 interface ColumnBuilder {
+  /** The foreign key `.references()` started on this column: Knex extends the column builder with its methods. */
+  fk?: ForeignData;
   method: string;
   name: string;
   args: ArgValue[];
@@ -216,6 +218,9 @@ const TABLE_STATEMENTS = new Set([
 ]);
 const MAX_DEPTH = 40;
 
+/** How a statement ended its block early. */
+type Jump = 'return' | 'break' | 'continue' | null;
+
 // ------------------------------------------------------------------ the replay
 
 /**
@@ -281,37 +286,78 @@ export class Replay {
 
   // ---------------------------------------------------------------- statements
 
-  private exec(body: readonly Stmt[], frame: Frame): void {
-    for (const st of body) this.stmt(st, frame);
+  /** Run statements; what ended them early: a `return`, a `break` or a `continue`. */
+  private exec(body: readonly Stmt[], frame: Frame): Jump {
+    for (const st of body) {
+      const j = this.stmt(st, frame);
+      if (j) return j;
+    }
+    return null;
   }
 
-  private stmt(st: Stmt, frame: Frame): void {
+  private stmt(st: Stmt, frame: Frame): Jump {
     switch (st.k) {
       case 'chain':
         this.chain(st.chain, frame, st.line, st.lazy);
-        return;
+        return null;
+      case 'return':
+        return 'return';
+      case 'break':
+        return 'break';
+      case 'continue':
+        return 'continue';
+      case 'block':
+        this.exec(st.body, new Frame(frame.file, frame));
+        return null;
+      case 'switch': {
+        const on = this.value(st.on, frame);
+        const known = on === null || ['string', 'number', 'boolean'].includes(typeof on);
+        let start = known ? st.cases.findIndex((c) => c.test !== undefined && this.value(c.test, frame) === on) : -1;
+        if (start < 0 && known) start = st.cases.findIndex((c) => c.test === undefined);
+        if (!known) {
+          // not known: the first clause with statements, as for an if whose condition is not known
+          start = st.cases.findIndex((c) => c.body.some((x) => x.k !== 'break'));
+          if (st.cases.some((c) => mayChangeSchema(c.body))) {
+            this.info('knex/condition-unknown', `the value of a switch (${valText(st.on)}) is not known statically; its first clause is replayed`, st.line);
+          }
+        }
+        if (start < 0) return null;
+        const f = new Frame(frame.file, frame);
+        for (let i = start; i < st.cases.length; i++) {
+          const j = this.exec(st.cases[i]!.body, f);
+          if (j === 'break') return null;
+          if (j) return j;
+        }
+        return null;
+      }
       case 'if': {
         const c = this.cond(st.cond, frame);
         if (c === undefined) {
-          this.info('knex/condition-unknown', `condition ${condText(st.cond)} is not known statically; its first branch is replayed`, st.line);
-          this.exec(st.then, new Frame(frame.file, frame));
-        } else this.exec(c ? st.then : st.else, new Frame(frame.file, frame));
-        return;
+          if (mayChangeSchema(st.then) || mayChangeSchema(st.else)) {
+            this.info('knex/condition-unknown', `condition ${condText(st.cond)} is not known statically; its first branch is replayed`, st.line);
+          }
+          return this.exec(st.then, new Frame(frame.file, frame));
+        }
+        return this.exec(c ? st.then : st.else, new Frame(frame.file, frame));
       }
       case 'each': {
         const over = this.value(st.over, frame);
         const items = Array.isArray(over) ? over : undefined;
         if (!items) {
-          this.counters.unresolved++;
-          this.warn('knex/loop-unknown', `the values of a loop (${valText(st.over)}) are not known statically; the loop is not replayed`, st.line);
-          return;
+          if (mayChangeSchema(st.body)) {
+            this.counters.unresolved++;
+            this.warn('knex/loop-unknown', `the values of a loop (${valText(st.over)}) are not known statically; the loop is not replayed`, st.line);
+          }
+          return null;
         }
         for (const item of items) {
           const f = new Frame(frame.file, frame);
           bindParams(f, st.bind, [item]);
-          this.exec(st.body, f);
+          const j = this.exec(st.body, f);
+          if (j === 'break' && !st.fn) break;
+          if (j === 'return' && !st.fn) return 'return';
         }
-        return;
+        return null;
       }
       case 'invoke': {
         const target = st.fn;
@@ -324,14 +370,14 @@ export class Replay {
         const args = st.args.map((a) => this.arg(a, frame));
         if (fn instanceof FnHandle) {
           this.call(fn, args, st.line);
-          return;
+          return null;
         }
         if (args.some(isRole)) {
           this.counters.unresolved++;
           const name = 'imp' in target ? `${target.name}${target.path ? '.' + target.path.join('.') : ''} from '${target.imp}'` : target.local;
           this.warn('knex/call-not-followed', `${name} is given a Knex builder but is not a function of the project that could be read; its effects are left out`, st.line);
         }
-        return;
+        return null;
       }
       case 'opaque': {
         const args = st.args.map((a) => this.arg(a, frame));
@@ -339,11 +385,11 @@ export class Replay {
           this.counters.unresolved++;
           this.warn('knex/call-not-followed', `${st.callee}(...) is given a Knex builder but its code is not in the project; its effects are left out`, st.line);
         }
-        return;
+        return null;
       }
       case 'note':
         this.warn(st.code, st.message, st.line);
-        return;
+        return null;
     }
   }
 
@@ -463,6 +509,13 @@ export class Replay {
     if (depth > MAX_DEPTH) return new Opaque(name);
     const e = file.facts.exports[name];
     if (!e) {
+      for (const spec of file.facts.reexports ?? []) {
+        const target = file.imports.get(spec);
+        const ctx = target ? this.files.get(target) : undefined;
+        if (!ctx || ctx === file) continue;
+        const v = this.exportValue(ctx, name, depth + 1);
+        if (v !== undefined) return v;
+      }
       // CommonJS interop: `import x from './cjs'` is module.exports; a named import reads a member of it
       if (name === 'default') return new Namespace(file);
       const d = file.facts.exports['default'];
@@ -919,10 +972,20 @@ export class Replay {
         return r;
       case 'references': {
         const fk: ForeignData = { columns: [col.name], line };
+        col.fk = fk;
         r.tb.statements.push({ m: 'foreign', args: [], fk, line });
         const fr = new ForeignRole(r.tb, fk, col);
         return this.foreignStep(fr, 'references', args, line);
       }
+      case 'inTable':
+      case 'on':
+      case 'onDelete':
+      case 'onUpdate':
+      case 'withKeyName':
+      case 'deferrable':
+        // `.references('id').notNullable().onDelete('CASCADE')`: still the column's foreign key
+        if (col.fk) return this.foreignStep(new ForeignRole(r.tb, col.fk, col), m, args, line);
+        return this.unknownMethod('column builder', m, line);
       default:
         if (COLUMN_NOOP.has(m)) return r;
         return this.unknownMethod('column builder', m, line);
@@ -1255,6 +1318,33 @@ export class Replay {
   }
 }
 
+const SCHEMA_CALLS = new Set([
+  'schema', 'raw', 'createTable', 'createTableIfNotExists', 'createTableLike', 'alterTable', 'dropTable', 'dropTableIfExists', 'renameTable',
+  'timestamps', 'dropTimestamps', 'foreign', ...TABLE_STATEMENTS, ...COLUMN_METHODS,
+]);
+
+/** Whether statements may change the schema (builder calls, helpers): else a loop or condition that cannot be decided does not matter. */
+export function mayChangeSchema(body: readonly Stmt[]): boolean {
+  return body.some((st) => {
+    switch (st.k) {
+      case 'chain':
+        return st.chain.calls[0]?.m !== '()' && st.chain.calls.some((c) => SCHEMA_CALLS.has(c.m) || c.m === '[]');
+      case 'if':
+        return mayChangeSchema(st.then) || mayChangeSchema(st.else);
+      case 'each':
+      case 'block':
+        return mayChangeSchema(st.body);
+      case 'switch':
+        return st.cases.some((c) => mayChangeSchema(c.body));
+      case 'invoke':
+      case 'opaque':
+        return true;
+      default:
+        return false;
+    }
+  });
+}
+
 function action(s: string): ReferentialAction | undefined {
   return ACTIONS[s.trim().toLowerCase().replace(/\s+/g, ' ')];
 }
@@ -1307,7 +1397,14 @@ export function valText(v: Val): string {
   if ('values' in v) return `Object.values(${valText(v.values)})`;
   if ('entries' in v) return `Object.entries(${valText(v.entries)})`;
   if ('at' in v) return `${valText(v.at)}[${valText(v.key)}]`;
-  return argText(undefined);
+  if ('or' in v) return `${valText(v.or[0])} || ${valText(v.or[1])}`;
+  if ('when' in v) return v.then === true && v.else === false ? condText(v.when) : `${condText(v.when)} ? ${valText(v.then)} : ${valText(v.else)}`;
+  if ('obj' in v) return `{ ${v.obj.map(([k, x]) => (k === '...' ? `...${valText(x)}` : `${k}: ${valText(x)}`)).join(', ')} }`;
+  if ('raw' in v) return `raw(${valText(v.raw)})`;
+  if ('fn' in v) return `fn.${v.fn}(${v.args.map(valText).join(', ')})`;
+  if ('dir' in v) return '__dirname';
+  if ('join' in v) return `path.join(${v.join.map(valText).join(', ')})`;
+  return 'undefined';
 }
 
 function condText(c: Cond): string {
