@@ -90,7 +90,7 @@ describe('the CLI with the repository configuration', () => {
   it('reads --knex-init and --knex-environment from schema-strata.config.json', async () => {
     const out = join(mkdtempSync(join(tmpdir(), 'strata-knex-cli-')), 'history.json');
     const err: string[] = [];
-    const code = await main(['extract', repo, '--adapter', 'knex', '-o', out, '--quiet'], {
+    const code = await main(['extract', repo, '--adapter', 'knex', '-o', out, '--quiet', '--no-cache'], {
       stdout: { write: () => true }, stderr: { write: (s: string) => err.push(s) }, env: {},
     } as never);
     expect(code, err.join('')).toBe(0);
