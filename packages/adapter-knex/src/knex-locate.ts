@@ -11,17 +11,17 @@ const KNEXFILE = /^knexfile\.(js|ts|cjs|mjs|cts|mts)$/;
 /**
  * Paths that can matter to locating or replaying Knex migrations: every JavaScript and
  * TypeScript file (a knexfile can name any directory, a migration can import constants from
- * anywhere in the project) and package.json files (a dependency on knex, when there is no
- * knexfile).
+ * anywhere in the project). One glob for the six extensions (.js .cjs .mjs .ts .cts .mts):
+ * git's log pass matches every watched glob against every changed path, so fewer is faster.
  */
-export const KNEX_WATCH = [...SOURCE_EXTENSIONS.map((e) => `**/*${e}`), '**/package.json'];
+export const KNEX_WATCH = ['**/*.*[jt]s'];
 
 /** Knex's default `migrations.loadExtensions` (lib/migrations/common/MigrationsLoader.js). */
 export const DEFAULT_LOAD_EXTENSIONS = ['.co', '.coffee', '.eg', '.iced', '.js', '.cjs', '.litcoffee', '.ls', '.ts'];
 
 export const SEARCHED =
   'knexfile.{js,ts,cjs,mjs,cts,mts} (its migrations.directory, per environment) at the root or in one package of a monorepo, ' +
-  'else ./migrations next to a package.json that depends on knex';
+  'else a directory named migrations whose files are Knex migrations';
 
 export function isKnexfile(path: string): boolean {
   return path.includes('knexfile.') && KNEXFILE.test(posix.basename(path));
@@ -215,7 +215,7 @@ export function scanImports(text: string): string[] {
 // memos by blob id: the same text always gives the same answer
 const importMemo = new Map<string, string[]>();
 const configMemo = new Map<string, Val | null>();
-const packageMemo = new Map<string, boolean>();
+const migrationMemo = new Map<string, boolean>();
 
 async function importsOf(tree: TreeView, path: string): Promise<string[]> {
   const blob = tree.blob(path);
@@ -242,20 +242,18 @@ async function knexfileConfig(tree: TreeView, path: string): Promise<Val | null>
   return c;
 }
 
-async function dependsOnKnex(tree: TreeView, path: string): Promise<boolean> {
+/**
+ * Whether a file reads like a Knex migration (a quick scan, memoised by blob): it defines `up`
+ * and uses a Knex builder. Migrations of other tools (a query runner, a query interface) do not.
+ */
+async function looksLikeKnexMigration(tree: TreeView, path: string): Promise<boolean> {
   const blob = tree.blob(path);
   if (!blob) return false;
-  let v = packageMemo.get(blob);
+  let v = migrationMemo.get(blob);
   if (v === undefined) {
-    const text = await tree.read(path);
-    v = false;
-    try {
-      const pkg = JSON.parse(text ?? '') as Record<string, Record<string, unknown> | undefined>;
-      v = ['dependencies', 'devDependencies', 'peerDependencies', 'optionalDependencies'].some((k) => !!pkg[k] && typeof pkg[k] === 'object' && 'knex' in pkg[k]!);
-    } catch {
-      v = false;
-    }
-    packageMemo.set(blob, v);
+    const text = (await tree.read(path)) ?? '';
+    v = /\bup\b/.test(text) && (/\.schema\s*\.\s*\w+\s*\(/.test(text) || /\bknex\b/.test(text)) && !/\bqueryRunner\b|\bqueryInterface\b/.test(text);
+    migrationMemo.set(blob, v);
   }
   return v;
 }
@@ -304,7 +302,7 @@ async function fromKnexfile(tree: TreeView, knexfile: string, environment: strin
 
 /**
  * Locate the Knex migrations of one commit: the migration directories of the knexfile (read as
- * a syntax tree, never run), else `migrations/` next to a package.json that depends on knex;
+ * a syntax tree, never run), else a directory named `migrations` whose files are Knex migrations;
  * `--path` entries instead when given. Init files named by `--knex-init` come first. Files the
  * migrations import from the project are included, so that their edits make versions.
  */
@@ -348,16 +346,18 @@ export async function locateKnex(tree: TreeView, req: LocateRequest): Promise<Lo
         };
       } else found = candidates[0]!;
     } else {
-      // no knexfile: ./migrations next to a package.json that depends on knex
-      const pkgs = all.filter((p) => posix.basename(p) === 'package.json' && !p.includes('node_modules/')).sort();
+      // no knexfile: directories named migrations whose files are Knex migrations (the root's first)
+      const dirs = [...new Set(all.filter((p) => /(^|\/)migrations\/[^/]+$/.test(p) && !p.includes('node_modules/')).map((p) => posix.dirname(p)))].sort(
+        (a, b) => a.split('/').length - b.split('/').length || (a < b ? -1 : a > b ? 1 : 0),
+      );
       const hits: Found[] = [];
-      for (const pkg of pkgs) {
-        if (!(await dependsOnKnex(tree, pkg))) continue;
-        const dir = posix.dirname(pkg) === '.' ? 'migrations' : `${posix.dirname(pkg)}/migrations`;
+      for (const dir of dirs) {
         const files = migrationsIn(tree.under(dir), dir, DEFAULT_LOAD_EXTENSIONS).files;
-        if (files.length > 0) hits.push({ migrations: files, diagnostics: [] });
+        let knexLike = false;
+        for (const f of files) if ((knexLike = await looksLikeKnexMigration(tree, f))) break;
+        if (knexLike) hits.push({ migrations: files, diagnostics: [] });
       }
-      if (hits.length === 1) found = hits[0]!;
+      if (hits.length === 1 || (hits.length > 1 && posix.dirname(hits[0]!.migrations[0]!) === 'migrations')) found = hits[0]!;
       else if (hits.length > 1) {
         ambiguous = {
           candidates: hits.map((h) => [posix.dirname(h.migrations[0]!) + '/']),

@@ -3,7 +3,8 @@
 // CommonJS with its __dirname, and the directories it yields are compared with the static read.
 import { posix } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { knexfileSettings, migrationsIn, parseKnexSource, resolveImport, scanImports, naturalCompare, isKnexfile } from '../src/index.js';
+import type { TreeView } from '@schema-strata/core';
+import { knexfileSettings, locateKnex, migrationsIn, parseKnexSource, resolveImport, scanImports, naturalCompare, isKnexfile } from '../src/index.js';
 
 /** Evaluate a CommonJS knexfile text as Node would (path is the only module it may require). */
 function evaluate(text: string, dir: string, env: Record<string, string> = {}): Record<string, unknown> {
@@ -129,5 +130,48 @@ describe('migration directories and imports', () => {
     const names = ['10_c.js', '2_b.js', '1_a.js', '1_a2.js', '01_x.js'];
     expect([...names].sort(naturalCompare)).toEqual(['1_a.js', '1_a2.js', '01_x.js', '2_b.js', '10_c.js']);
     expect([...names].sort()).toEqual(['01_x.js', '10_c.js', '1_a.js', '1_a2.js', '2_b.js']);
+  });
+});
+
+function tree(files: Record<string, string>): TreeView {
+  const paths = Object.keys(files).sort();
+  return {
+    commit: 'c',
+    paths: () => paths,
+    has: (p) => p in files,
+    blob: (p) => (p in files ? `blob:${p}:${files[p]!.length}` : undefined),
+    read: async (p) => files[p],
+    under: (d) => paths.filter((p) => d === '' || p.startsWith(d + '/')),
+  };
+}
+
+const KNEX_MIGRATION = "exports.up = (knex) => knex.schema.createTable('t', (t) => { t.increments(); });\nexports.down = () => {};\n";
+
+describe('locating the migrations of one commit', () => {
+  it('follows the knexfile, with the files the migrations import and the init files', async () => {
+    const t = tree({
+      'knexfile.js': "module.exports = { client: 'pg', migrations: { directory: './db/migrations' } };",
+      'db/migrations/001.js': "const { T } = require('../names');\n" + KNEX_MIGRATION,
+      'db/names.js': "exports.T = 't';",
+      'db/base.js': 'module.exports = async (knex) => {};',
+      'src/app.js': 'console.log(1);',
+    });
+    const r = await locateKnex(t, { options: { 'knex-init': ['./db/base.js'] } });
+    expect(r.files).toEqual(['knexfile.js', 'db/base.js', 'db/migrations/001.js', 'db/names.js']);
+  });
+
+  it('without a knexfile, takes a migrations directory of Knex migrations (the root one first)', async () => {
+    const r = await locateKnex(tree({ 'migrations/001.js': KNEX_MIGRATION, 'packages/api/migrations/001.js': KNEX_MIGRATION }), { options: {} });
+    expect(r.files).toEqual(['migrations/001.js']);
+    const amb = await locateKnex(tree({ 'a/migrations/001.js': KNEX_MIGRATION, 'b/migrations/001.js': KNEX_MIGRATION }), { options: {} });
+    expect(amb.ambiguous?.candidates).toEqual([['a/migrations/'], ['b/migrations/']]);
+  });
+
+  it('does not take the migrations of other tools for Knex migrations', async () => {
+    const typeorm = "import { MigrationInterface, QueryRunner } from 'typeorm';\nexport class Init1 implements MigrationInterface {\n  async up(queryRunner: QueryRunner) { await queryRunner.query('CREATE TABLE t (id int)'); }\n  async down() {}\n}\n";
+    const sequelize = "module.exports = { up: async (queryInterface, Sequelize) => { await queryInterface.createTable('t', {}); }, down: async () => {} };\n";
+    const r = await locateKnex(tree({ 'src/migrations/1-Init.ts': typeorm, 'db/migrations/001.js': sequelize }), { options: {} });
+    expect(r.files).toEqual([]);
+    expect(r.searched).toContain('knexfile');
   });
 });
