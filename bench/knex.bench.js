@@ -5,6 +5,9 @@
 //   - the naive way: parse and replay every migration anew at every commit (measured on a
 //     sample of the commits and scaled to all of them);
 //   - the extract cut at 500, 1,000 and 1,500 commits, to show the cost growing linearly.
+// Every measurement runs in a fresh process (no warm caches carried from one to the next); the
+// extract also reports the time spent in the adapter's own steps (locate, parseFile, the
+// session's assemble), the rest being git and core. Peak memory is each process's max RSS.
 // Targets (issue 5): extract <= 1.5x the floor, >= 20x faster than naive.
 import { spawn, spawnSync } from 'node:child_process';
 import { mkdirSync, rmSync } from 'node:fs';

@@ -28,7 +28,7 @@ export interface PlanEntry {
 export interface VersionPlan {
   dialect: Dialect;
   entries: PlanEntry[];
-  files: Map<string, FileContext>;
+  files: FileLookup;
   diagnostics: Diagnostic[];
 }
 
@@ -79,6 +79,50 @@ function fileContext(path: string, facts: KnexFacts, paths: { has(p: string): bo
   return ctx;
 }
 
+/**
+ * The files of a version by path: a binary search over the input (sorted by path), each file's
+ * context made on first use, so that a version costs no map of all its files.
+ */
+export class FileLookup {
+  private readonly made = new Map<number, FileContext>();
+  constructor(
+    private readonly input: AssembleInput<KnexFacts>['files'],
+    private readonly paths: { has(p: string): boolean },
+  ) {}
+
+  get(path: string): FileContext | undefined {
+    const files = this.input;
+    let lo = 0;
+    let hi = files.length - 1;
+    while (lo <= hi) {
+      const mid = (lo + hi) >> 1;
+      const p = files[mid]!.path;
+      if (p === path) return this.at(mid);
+      if (p < path) lo = mid + 1;
+      else hi = mid - 1;
+    }
+    return undefined;
+  }
+
+  private at(i: number): FileContext | undefined {
+    let ctx = this.made.get(i);
+    if (!ctx) {
+      const f = this.input[i]!;
+      if (!f.facts) return undefined;
+      ctx = fileContext(f.path, f.facts, this.paths);
+      this.made.set(i, ctx);
+    }
+    return ctx;
+  }
+
+  *values(): IterableIterator<FileContext> {
+    for (let i = 0; i < this.input.length; i++) {
+      const ctx = this.at(i);
+      if (ctx) yield ctx;
+    }
+  }
+}
+
 /** Compare two names with digit runs as numbers (`2_x` before `10_x`), the rest as text; equal ones by their text. */
 export function naturalCompare(a: string, b: string): number {
   const digit = (c: number): boolean => c >= 48 && c <= 57;
@@ -119,11 +163,7 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
   const all = input.files.map((f) => f.path);
   let pathSet: Set<string> | null = null;
   const paths = { has: (p: string): boolean => (pathSet ??= new Set([...all, ...input.missing])).has(p) };
-  const files = new Map<string, FileContext>();
-  for (const f of input.files) {
-    if (!f.facts) continue;
-    files.set(f.path, fileContext(f.path, f.facts, paths));
-  }
+  const files = new FileLookup(input.files, paths);
   let blobs: Map<string, string> | null = null;
   const blobOf = (p: string): string => (blobs ??= new Map(input.files.map((f) => [f.path, f.blob]))).get(p) ?? '';
 

@@ -171,12 +171,16 @@ export function migrationsIn(paths: readonly string[], dir: string, loadExtensio
   const sources: string[] = [];
   for (const p of paths) {
     if (!p.startsWith(prefix) || p.indexOf('/', prefix.length) >= 0) continue;
-    const dot = p.lastIndexOf('.');
-    if (dot <= prefix.length) continue;
-    const ext = p.slice(dot);
-    if (ext.endsWith('ts') && /\.d\.[cm]?ts$/.test(p)) continue;
-    if (loadExtensions.includes(ext)) files.push(p);
-    else if (ext === '.ts' || ext === '.mts' || ext === '.cts') sources.push(p);
+    if (p.endsWith('ts') && /\.d\.[cm]?ts$/.test(p)) continue;
+    let loaded = false;
+    for (const e of loadExtensions) {
+      if (p.endsWith(e) && p.length - e.length > prefix.length) {
+        loaded = true;
+        break;
+      }
+    }
+    if (loaded) files.push(p);
+    else if (p.endsWith('.ts') || p.endsWith('.mts') || p.endsWith('.cts')) sources.push(p);
   }
   if (files.length > 0 || !loadExtensions.includes('.js')) return { files, fromSources: false };
   return { files: sources, fromSources: sources.length > 0 };

@@ -241,7 +241,7 @@ export class Replay {
   constructor(
     state: SchemaState,
     private readonly dialect: Dialect,
-    private readonly files: ReadonlyMap<string, FileContext>,
+    private readonly files: { get(path: string): FileContext | undefined },
   ) {
     this.tables = new PMap(state.tables);
     this.views = new Map(state.views);
