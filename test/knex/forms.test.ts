@@ -86,6 +86,13 @@ const CASES: Case[] = [
     },
   },
   {
+    // older Knex passed a Promise library as the second argument; Knex 3 passes none, hence the default
+    name: 'older style: up(knex, Promise) returning Promise.all of builders',
+    files: {
+      'migrations/001.js': "exports.up = function (knex, Promise = globalThis.Promise) {\n  return Promise.all([\n    knex.schema.createTable('a', function (t) { t.increments(); }),\n    knex.schema.createTable('b', function (t) { t.increments(); t.string('label'); }),\n  ]);\n};\nexports.down = function (knex, Promise) { return Promise.resolve(); };\n",
+    },
+  },
+  {
     name: 'several migrations in file-name order, across JS and TS',
     files: {
       'migrations/20240102_b.ts': "export async function up(knex: any) { await knex.schema.alterTable('a', (t: any) => { t.renameColumn('x', 'y'); }); }\nexport async function down() {}\n",

@@ -548,7 +548,8 @@ class FileCompiler {
       const method = callee.name.text;
       const recv = this.unwrap(callee.expression);
       // Promise.all([...]) / Promise.all(xs.map(cb)) / Bluebird.each(xs, cb)
-      if (t.isIdentifier(recv) && !scope.get(recv.text) && (recv.text === 'Promise' || recv.text === 'Bluebird' || recv.text === 'BPromise')) {
+      // (older Knex passed a Promise library as up's second parameter: `function (knex, Promise)`)
+      if (t.isIdentifier(recv) && (recv.text === 'Promise' || recv.text === 'Bluebird' || recv.text === 'BPromise' || recv.text === 'P')) {
         if (PROMISE_ALL.has(method) && e.arguments[0]) {
           this.effect(e.arguments[0], scope, out);
           return;
