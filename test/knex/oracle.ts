@@ -63,12 +63,9 @@ export interface OracleRun {
 const SOURCE = new Set(['.js', '.cjs', '.mjs', '.ts', '.cts', '.mts']);
 const KNEX_TABLES = new Set(['knex_migrations', 'knex_migrations_lock', 'sqlite_sequence']);
 
-/** Write a tree to disk and its CommonJS translation beside it (TypeScript's transpileModule). */
-function materialise(tree: Map<string, string>): { src: string; out: string } {
-  const root = mkdtempSync(join(tmpdir(), 'strata-knex-oracle-'));
-  const src = join(root, 'src');
-  const out = join(root, 'out');
-  for (const [path, text] of tree) {
+/** Write files to disk and their CommonJS translation beside it (TypeScript's transpileModule). */
+function writeFiles(src: string, out: string, files: Iterable<[string, string]>): void {
+  for (const [path, text] of files) {
     const file = join(src, path);
     mkdirSync(dirname(file), { recursive: true });
     writeFileSync(file, text);
@@ -82,6 +79,13 @@ function materialise(tree: Map<string, string>): { src: string; out: string } {
     mkdirSync(dirname(target), { recursive: true });
     writeFileSync(target, js);
   }
+}
+
+function materialise(tree: Map<string, string>): { src: string; out: string } {
+  const root = mkdtempSync(join(tmpdir(), 'strata-knex-oracle-'));
+  const src = join(root, 'src');
+  const out = join(root, 'out');
+  writeFiles(src, out, tree);
   mkdirSync(join(out, 'node_modules'), { recursive: true });
   symlinkSync(dirname(require.resolve('knex/package.json')), join(out, 'node_modules', 'knex'));
   writeFileSync(join(out, 'package.json'), '{"type":"commonjs"}\n');
@@ -142,51 +146,98 @@ export interface RunOptions {
   each?: boolean;
 }
 
-/** Run the migrations of a tree for real with Knex, as its CLI would from the knexfile's directory. */
-export async function runKnex(tree: Map<string, string>, opts: RunOptions): Promise<OracleRun> {
-  const { src, out } = materialise(tree);
-  const knexfile = [...tree.keys()].find((p) => /^knexfile\.(js|ts|cjs|mjs)$/.test(p));
-  let migrationsConfig: { directory?: string | string[]; loadExtensions?: string[]; sortDirsSeparately?: boolean } = {};
-  if (knexfile) {
-    const mod = require(outPath(src, out, join(src, knexfile))) as { default?: Record<string, KnexType.Config> } & Record<string, KnexType.Config>;
-    const config = (mod.default ?? mod) as Record<string, KnexType.Config>;
-    const env = (config[opts.environment] ?? config) as KnexType.Config;
-    migrationsConfig = (env.migrations ?? {}) as typeof migrationsConfig;
-  }
-  // Knex's CLI works in the knexfile's directory: relative directories are relative to it
-  const dirs = (Array.isArray(migrationsConfig.directory) ? migrationsConfig.directory : [migrationsConfig.directory ?? './migrations']).map((d) =>
-    isAbsolute(d) ? d.replace(out, src) : resolve(src, d),
-  );
-  const fsSource = new FsMigrations(dirs, migrationsConfig.sortDirsSeparately ?? false, migrationsConfig.loadExtensions);
-  const migrationSource = {
-    // Knex hands its default loadExtensions to a custom source; the knexfile's own apply here, as they would with Knex's CLI
-    getMigrations: () => fsSource.getMigrations(migrationsConfig.loadExtensions),
-    getMigrationName: (m: { file: string }) => fsSource.getMigrationName(m),
-    getMigration: async (m: { file: string; directory: string }) => require(outPath(src, out, join(m.directory, m.file))),
-  };
-  const migrations = { migrationSource };
-  const knex =
-    opts.engine === 'sqlite'
-      ? Knex({ client: 'better-sqlite3', connection: { filename: ':memory:' }, useNullAsDefault: true, migrations })
-      : Knex({ client: ClientPGlite as never, connection: { pglite: opts.pglite } as never, pool: { min: 1, max: 1 }, migrations });
-  try {
-    for (const file of opts.init ?? []) {
-      const mod = require(outPath(src, out, join(src, file))) as ((k: KnexType) => Promise<void>) & { default?: (k: KnexType) => Promise<void>; up?: (k: KnexType) => Promise<void> };
-      const fn = mod.up ?? mod.default ?? mod;
-      await fn(knex);
+/**
+ * A project on disk with its database, as Knex's CLI would use it from the knexfile's directory:
+ * `migrate()` runs the pending migrations (as `knex migrate:latest`, one by one), `add()` brings
+ * in the files of a later commit that only adds files (then the same database goes on).
+ */
+export class KnexProject {
+  /** Every migration run on this database, in order. */
+  readonly ran: string[] = [];
+  private constructor(
+    private readonly src: string,
+    private readonly out: string,
+    private readonly knex: KnexType,
+    private readonly opts: RunOptions,
+  ) {}
+
+  static async open(tree: Map<string, string>, opts: RunOptions): Promise<KnexProject> {
+    const { src, out } = materialise(tree);
+    const knexfile = [...tree.keys()].find((p) => /^knexfile\.(js|ts|cjs|mjs)$/.test(p));
+    let migrationsConfig: { directory?: string | string[]; loadExtensions?: string[]; sortDirsSeparately?: boolean } = {};
+    if (knexfile) {
+      const mod = require(outPath(src, out, join(src, knexfile))) as { default?: Record<string, KnexType.Config> } & Record<string, KnexType.Config>;
+      const config = (mod.default ?? mod) as Record<string, KnexType.Config>;
+      const env = (config[opts.environment] ?? config) as KnexType.Config;
+      migrationsConfig = (env.migrations ?? {}) as typeof migrationsConfig;
     }
-    const introspect = (): Promise<DbTable[]> => (opts.engine === 'sqlite' ? introspectSqlite(knex) : introspectPg(opts.pglite!));
-    const [, pending] = (await knex.migrate.list()) as [unknown[], Array<{ file: string }>];
+    // Knex's CLI works in the knexfile's directory: relative directories are relative to it
+    const dirs = (Array.isArray(migrationsConfig.directory) ? migrationsConfig.directory : [migrationsConfig.directory ?? './migrations']).map((d) =>
+      isAbsolute(d) ? d.replace(out, src) : resolve(src, d),
+    );
+    const fsSource = new FsMigrations(dirs, migrationsConfig.sortDirsSeparately ?? false, migrationsConfig.loadExtensions);
+    const migrationSource = {
+      // Knex hands its default loadExtensions to a custom source; the knexfile's own apply here, as they would with Knex's CLI
+      getMigrations: () => fsSource.getMigrations(migrationsConfig.loadExtensions),
+      getMigrationName: (m: { file: string }) => fsSource.getMigrationName(m),
+      getMigration: async (m: { file: string; directory: string }) => require(outPath(src, out, join(m.directory, m.file))),
+    };
+    const migrations = { migrationSource };
+    const knex =
+      opts.engine === 'sqlite'
+        ? Knex({ client: 'better-sqlite3', connection: { filename: join(src, '..', 'oracle.sqlite3') }, useNullAsDefault: true, migrations })
+        : Knex({ client: ClientPGlite as never, connection: { pglite: opts.pglite } as never, pool: { min: 1, max: 1 }, migrations });
+    const project = new KnexProject(src, out, knex, opts);
+    try {
+      for (const file of opts.init ?? []) {
+        const mod = require(outPath(src, out, join(src, file))) as ((k: KnexType) => Promise<void>) & { default?: (k: KnexType) => Promise<void>; up?: (k: KnexType) => Promise<void> };
+        const fn = mod.up ?? mod.default ?? mod;
+        await fn(knex);
+      }
+    } catch (e) {
+      await knex.destroy();
+      throw e;
+    }
+    return project;
+  }
+
+  /** Write the files a later commit adds. */
+  add(files: Iterable<[string, string]>): void {
+    writeFiles(this.src, this.out, files);
+  }
+
+  /** Names of the migrations Knex has not run yet, in its order. */
+  async pending(): Promise<string[]> {
+    const [, pending] = (await this.knex.migrate.list()) as [unknown[], Array<{ file: string }>];
+    return pending.map((p) => p.file);
+  }
+
+  /** Run the pending migrations one by one; the database after each (when asked) and at the end. */
+  async migrate(each = false): Promise<OracleRun> {
+    const introspect = (): Promise<DbTable[]> => (this.opts.engine === 'sqlite' ? introspectSqlite(this.knex) : introspectPg(this.opts.pglite!));
     const names: string[] = [];
     const after: OracleRun['after'] = [];
-    for (const p of pending) {
-      await knex.migrate.up();
-      names.push(p.file);
-      if (opts.each) after.push({ migration: p.file, tables: await introspect() });
+    for (const file of await this.pending()) {
+      await this.knex.migrate.up();
+      names.push(file);
+      this.ran.push(file);
+      if (each) after.push({ migration: file, tables: await introspect() });
     }
     return { migrations: names, after, final: await introspect() };
+  }
+
+  close(): Promise<void> {
+    return this.knex.destroy();
+  }
+}
+
+/** Run the migrations of a tree for real with Knex on a new database. */
+export async function runKnex(tree: Map<string, string>, opts: RunOptions): Promise<OracleRun> {
+  const project = await KnexProject.open(tree, opts);
+  try {
+    return await project.migrate(opts.each);
   } finally {
-    await knex.destroy();
+    await project.close();
   }
 }
 
