@@ -398,14 +398,14 @@ export class KnexSession implements AdapterSession<KnexFacts> {
       path: s.path,
       role: s.role,
       skipped: s.missing,
-      snapshot: { tables: [...s.state.tables.values()].map(toTable), views: [...s.state.views.values()].map(toView) },
+      snapshot: { tables: s.state.tables.valueList().map(toTable), views: [...s.state.views.values()].map(toView) },
     }));
   }
 
   private result(state: SchemaState, plan: VersionPlan): AssembleResult {
     const last = this.steps[this.steps.length - 1]?.upTo ?? { diagnostics: [], counters: NO_COUNTS };
     const diagnostics = [...plan.diagnostics, ...last.diagnostics];
-    const tables = [...state.tables.values()].map(toTable);
+    const tables = state.tables.valueList().map(toTable);
     const views = [...state.views.values()].map(toView);
     return { snapshot: { tables, views }, diagnostics, counters: { ...last.counters } };
   }

@@ -76,6 +76,13 @@ export class PMap<V> implements Iterable<[string, V]> {
     for (const b of this.buckets) if (b) yield* b.values();
   }
 
+  /** The values in an array (faster than iterating `values()`). */
+  valueList(): V[] {
+    const out: V[] = [];
+    for (const b of this.buckets) if (b) for (const v of b.values()) out.push(v);
+    return out;
+  }
+
   [Symbol.iterator](): IterableIterator<[string, V]> {
     return this.entries();
   }
