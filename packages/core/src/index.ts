@@ -15,7 +15,7 @@ export type { BuiltSnapshot, StoredTable, TableOrigins } from './history/snapsho
 export { CHANGE_KINDS, type Change, type ChangeKind } from './changes/kinds.js';
 export { diffSnapshots } from './changes/diff-snapshots.js';
 export { diffTable, formatForeignKey } from './changes/diff-tables.js';
-export { toDocument, serialiseDocument, snapshotOfVersion, FORMAT_NAME, FORMAT_VERSION, type InterchangeDocument } from './interchange/document.js';
+export { toDocument, serialiseDocument, snapshotOfVersion, filesOfVersion, type DocumentVersion, FORMAT_NAME, FORMAT_VERSION, type InterchangeDocument } from './interchange/document.js';
 export { writeFileAtomic } from './util/atomic-write.js';
 export { UsageError, EXIT } from './util/errors.js';
 export { streamProgress, silentProgress, type Progress } from './util/progress.js';

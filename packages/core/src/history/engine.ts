@@ -17,6 +17,7 @@ import { canonicalJson } from '../model/canonical.js';
 import type { Diagnostic, Table, ViewRef } from '../model/types.js';
 import { UsageError, EXIT } from '../util/errors.js';
 import { RecordPack } from './disk-cache.js';
+import { SetKeys, sameRefs, sortedUnique } from './set-key.js';
 import { pathLineage } from './path-lineage.js';
 import { packOrigins, SnapshotStore, unpackOrigins, type BuiltSnapshot, type PackedOrigins, type TableOrigins } from './snapshot-store.js';
 import type { Progress } from '../util/progress.js';
@@ -176,7 +177,8 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
     const lineage = literal.length > 0 ? pathLineage(commits, literal) : null;
     const userMatch = matcher(globs);
     const candidates: Candidate[] = [];
-    let prevKey = '';
+    let prevFiles: FileRef[] = [];
+    const keys = new SetKeys();
     const ambiguous = new Map<string, string[]>();
     let ambiguousHint = '';
     let unsupported: string | undefined;
@@ -199,15 +201,19 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
         for (const cand of located.ambiguous.candidates) ambiguous.set(cand.join(', '), cand);
         ambiguousHint = located.ambiguous.hint;
       }
-      const files = [...new Set(located.files)].sort().map((p) => ({ path: p, blob: tree.get(p) ?? '' })).filter((f) => f.blob);
-      const key = files.map((f) => `${f.path}\u0000${f.blob}`).join('\u0001');
-      if (key !== prevKey) {
-        const consulted = [...new Set(located.consulted ?? [])]
-          .sort()
-          .map((p) => ({ path: p, blob: tree.get(p) ?? '' }))
-          .filter((f) => f.blob);
+      const files: FileRef[] = [];
+      for (const p of sortedUnique(located.files)) {
+        const blob = tree.get(p);
+        if (blob) files.push(keys.ref(p, blob));
+      }
+      if (!sameRefs(files, prevFiles)) {
+        const consulted: FileRef[] = [];
+        for (const p of sortedUnique(located.consulted ?? [])) {
+          const blob = tree.get(p);
+          if (blob) consulted.push({ path: p, blob });
+        }
         candidates.push({ pos: i, commit: c, files, consulted, diagnostics: located.diagnostics ?? [] });
-        prevKey = key;
+        prevFiles = files;
       }
       if (i % 256 === 0) progress?.tick(i + 1);
     }
@@ -249,7 +255,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
 
     // ---- build every version
     const built = await buildVersions(inWindow, {
-      adapter, options, reader, cacheDir: req.cacheDir, progress,
+      adapter, options, reader, cacheDir: req.cacheDir, progress, keys,
     });
     if (built.versions.length === 0) throw new UsageError(`no version of the ${adapter.name} schema could be built: ${built.runDiagnostics.find((d) => d.severity === 'error')?.message ?? 'every one failed'}`, EXIT.failure);
     return {
@@ -336,6 +342,7 @@ async function resolveWindow(
 }
 
 interface BuildContext {
+  keys: SetKeys;
   adapter: SchemaAdapter;
   options: AdapterOptionValues;
   reader: BlobReader;
@@ -382,7 +389,7 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
   const unitKeyOf = (cand: Candidate): string => {
     let k = unitKeys.get(cand);
     if (k === undefined) {
-      k = hashText(canonicalJson({ files: cand.files.map((f) => [f.path, f.blob]) }));
+      k = ctx.keys.key(cand.files);
       unitKeys.set(cand, k);
     }
     return k;
@@ -477,9 +484,15 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
             });
           }
         }
-        let k = '';
-        for (const x of inputs) k += `${x.path}\u0000${x.blob}\u0000${x.stale ? lastGood.get(x.path)?.blob ?? '' : ''}\u0001`;
-        key = hashText(`${k}\u0002${missing.join('\u0000')}`);
+        // the set of inputs: plain (path, blob) pairs, plus the stale ones with the blob whose facts they use
+        const plain: FileRef[] = [];
+        const extra: string[] = [];
+        for (const x of inputs) {
+          if (x.stale) extra.push(`stale\u0000${x.path}\u0000${x.blob}\u0000${lastGood.get(x.path)?.blob ?? ''}`);
+          else plain.push(ctx.keys.ref(x.path, x.blob));
+        }
+        for (const m of missing) extra.push(`missing\u0000${m}`);
+        key = ctx.keys.key(plain, extra);
       }
 
       // ---- assemble (cached by the exact input set)

@@ -1,5 +1,5 @@
 import type { Change } from '../changes/kinds.js';
-import type { History, VersionRecord } from '../history/engine.js';
+import type { FileRef, History, VersionRecord } from '../history/engine.js';
 import { withOrigins } from '../history/snapshot-store.js';
 import type { Diagnostic, Table, ViewRef } from '../model/types.js';
 
@@ -38,7 +38,7 @@ export interface InterchangeDocument {
     changes: number;
     statuses: Record<string, number>;
   };
-  versions: VersionRecord[];
+  versions: DocumentVersion[];
   snapshots: Record<string, InterchangeSnapshot>;
   tables: Record<string, Table>;
   changes: Change[];
@@ -89,12 +89,43 @@ export function toDocument(h: History, generator: { name: string; version: strin
       changes: h.changes.length,
       statuses,
     },
-    versions: h.versions,
+    versions: versionsWithFileChanges(h.versions),
     snapshots,
     tables,
     changes: h.changes,
     diagnostics: h.diagnostics,
   };
+}
+
+/**
+ * A version as the document holds it: `files` lists only the files added or changed at this
+ * version (all of them at version 0), `removedFiles` the paths no longer read, `fileCount` the size
+ * of the whole set, so that a history of migrations, where every version reads every earlier
+ * migration, stays linear in size. `filesOfVersion` rebuilds the whole set.
+ */
+export type DocumentVersion = Omit<VersionRecord, 'files'> & { files: FileRef[]; removedFiles: string[]; fileCount: number };
+
+function versionsWithFileChanges(versions: VersionRecord[]): DocumentVersion[] {
+  let prev = new Map<string, string>();
+  return versions.map((v) => {
+    const now = new Map(v.files.map((f) => [f.path, f.blob]));
+    const files = v.files.filter((f) => prev.get(f.path) !== f.blob);
+    const removedFiles = [...prev.keys()].filter((p) => !now.has(p));
+    prev = now;
+    const { files: _all, ...rest } = v;
+    return { ...rest, files, removedFiles, fileCount: v.files.length };
+  });
+}
+
+/** Every file (path and blob) a version of a document was built from, sorted by path. */
+export function filesOfVersion(doc: Pick<InterchangeDocument, 'versions'>, index: number): FileRef[] {
+  const set = new Map<string, string>();
+  for (let i = 0; i <= index && i < doc.versions.length; i++) {
+    const v = doc.versions[i]!;
+    for (const p of v.removedFiles ?? []) set.delete(p);
+    for (const f of v.files) set.set(f.path, f.blob);
+  }
+  return [...set.entries()].sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0)).map(([path, blob]) => ({ path, blob }));
 }
 
 /** Serialise a document: two-space indentation, a final newline. */
