@@ -30,7 +30,9 @@ const US = '\x1f';
 
 /**
  * The log pass: one `git log` process over the first-parent line of `ref`, oldest first, with
- * raw diffs (full blob ids, rename detection) limited to `pathspecs`. Merges are diffed
+ * raw diffs (full blob ids) limited to `pathspecs`. Rename detection (`renames`) is asked only
+ * when literal `--path` entries must be followed back through moves: it is the costliest part
+ * of the pass, and the tree state needs none (a rename is a deletion plus an addition). Merges are diffed
  * against their first parent, so what a merge brings in is seen at the merge.
  */
 export function logPass(
@@ -38,12 +40,13 @@ export function logPass(
   ref: string,
   pathspecs: string[],
   onCommit?: (n: number) => void,
+  opts: { renames?: boolean } = {},
 ): Promise<LoggedCommit[]> {
   const args = [
     '-C', repo,
     '-c', 'core.quotePath=false',
     '-c', 'diff.renameLimit=10000',
-    'log', '--first-parent', '--diff-merges=first-parent', '--raw', '-z', '--no-abbrev', '-M', '--root',
+    'log', '--first-parent', '--diff-merges=first-parent', '--raw', '-z', '--no-abbrev', ...(opts.renames ? ['-M'] : ['--no-renames']), '--root',
     '--reverse', '--no-color', '--no-ext-diff', '--no-textconv',
     `--format=${RS}%H${US}%P${US}%aI${US}%cI${US}%s`,
     ref, '--', ...pathspecs,

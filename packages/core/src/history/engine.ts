@@ -165,7 +165,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
 
   // ---- the log pass
   progress?.phase('reading history');
-  const commits = await logPass(repo.path, repo.head, pathspecs, (n) => progress?.tick(n));
+  const commits = await logPass(repo.path, repo.head, pathspecs, (n) => progress?.tick(n), { renames: literal.length > 0 });
 
   // ---- the window
   const window = await resolveWindow(repo.path, repo.head, commits, req.since, req.until);

@@ -8,7 +8,7 @@ import type { FileRef } from './engine.js';
  * no string building. Paths are unique within a set, so no member appears twice.
  */
 export class SetKeys {
-  private readonly digests = new WeakMap<object, Buffer>();
+  private readonly digests = new WeakMap<object, Uint32Array>();
   private readonly refs = new Map<string, FileRef>();
 
   /** The one FileRef object of a (path, blob) pair while its path keeps that blob. */
@@ -21,10 +21,10 @@ export class SetKeys {
     return r;
   }
 
-  private digest(r: FileRef): Buffer {
+  private digest(r: FileRef): Uint32Array {
     let d = this.digests.get(r);
     if (!d) {
-      d = createHash('sha256').update(`${r.path}\u0000${r.blob}`).digest();
+      d = words(`${r.path}\u0000${r.blob}`);
       this.digests.set(r, d);
     }
     return d;
@@ -32,15 +32,23 @@ export class SetKeys {
 
   /** Key of a set of file references, plus optional extra members given as text. */
   key(files: readonly FileRef[], extra: readonly string[] = []): string {
-    const acc = Buffer.alloc(32);
-    for (const f of files) xorInto(acc, this.digest(f));
-    for (const e of extra) xorInto(acc, createHash('sha256').update(`\u0003${e}`).digest());
-    return acc.toString('hex');
+    const acc = new Uint32Array(8);
+    for (const f of files) {
+      const d = this.digest(f);
+      for (let i = 0; i < 8; i++) acc[i]! ^= d[i]!;
+    }
+    for (const e of extra) {
+      const d = words(`\u0003${e}`);
+      for (let i = 0; i < 8; i++) acc[i]! ^= d[i]!;
+    }
+    return Buffer.from(acc.buffer).toString('hex');
   }
 }
 
-function xorInto(acc: Buffer, d: Buffer): void {
-  for (let i = 0; i < 32; i += 4) acc.writeInt32LE(acc.readInt32LE(i) ^ d.readInt32LE(i), i);
+/** SHA-256 of a text as eight 32-bit words. */
+function words(text: string): Uint32Array {
+  const b = createHash('sha256').update(text).digest();
+  return new Uint32Array(b.buffer.slice(b.byteOffset, b.byteOffset + 32));
 }
 
 /** Whether two lists hold the same objects in the same order. */
