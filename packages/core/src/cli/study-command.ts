@@ -1,0 +1,78 @@
+import { availableParallelism } from 'node:os';
+import { resolve } from 'node:path';
+import type { Command } from 'commander';
+import { defaultCacheDir } from '../history/disk-cache.js';
+import { UsageError, EXIT } from '../util/errors.js';
+import { readCorpus } from '../study/corpus.js';
+import { checkQueueUrl, DEFAULT_QUEUE_NAME, displayUrl } from '../study/queue.js';
+import { runStudyJobs } from '../study/run-study.js';
+import type { StudySettings } from '../study/runner.js';
+import { formatRunSummary } from '../study/study-text.js';
+import { parseSize, progressFor, type CliIO } from './common.js';
+
+export interface StudyCliOptions {
+  output: string;
+  jobs?: string;
+  queue?: string;
+  queueName: string;
+  maxFileSize: string;
+  cache?: boolean;
+  cacheDir?: string;
+  update?: boolean;
+  retryFailed?: boolean;
+  quiet?: boolean;
+  [k: string]: unknown;
+}
+
+/** A whole number >= `min` from an option value; otherwise a one-line usage error. */
+export function wholeNumber(flag: string, v: string, min = 1): number {
+  const n = Number(v);
+  if (!/^\s*\d+\s*$/.test(v) || !Number.isInteger(n) || n < min) throw new UsageError(`${flag} ${v}: must be a whole number >= ${min}`, EXIT.usage);
+  return n;
+}
+
+export function registerStudy(program: Command, io: CliIO, setCode: (c: number) => void): void {
+  const cmd = program
+    .command('study')
+    .description('extract and analyse every repository of a corpus, each into DIR/<label>.json, then pool them (resumable; in parallel, or on a queue for many machines)')
+    .argument('<corpus>', 'a JSON corpus (repositories with label, path or clone URL, adapter, paths, options) or a text file with one path or URL per line')
+    .option('-o, --output <dir>', 'output directory: one interchange file per repository, the pooled study beside them', 'study')
+    .option('--jobs <n>', `repositories extracted at once, each in its own process (default: the number of cores, ${availableParallelism()} here)`)
+    .option('--queue <url>', 'put one job per repository on the BullMQ queue of this Redis server (redis://HOST:PORT) and wait for `schema-strata worker` processes to do them; DIR must be shared storage they see')
+    .option('--queue-name <name>', 'name of the queue', DEFAULT_QUEUE_NAME)
+    .option('--max-file-size <size>', 'files larger than this are not read (a diagnostic instead)', '5MB')
+    .option('--cache-dir <dir>', `cache directory: the parse cache, and clones of URLs under clones/ (default ${defaultCacheDir()})`)
+    .option('--no-cache', 'neither read nor write the parse cache (clones are still kept)')
+    .option('--no-update', 'read clones already in the cache as they are, without fetching')
+    .option('--retry-failed', 'run again the repositories whose last run failed with the same inputs')
+    .option('--quiet', 'no progress on standard error');
+  cmd.action(async (corpusFile: string, opts: StudyCliOptions) => {
+    const corpus = readCorpus(corpusFile);
+    const jobs = opts.jobs !== undefined ? wholeNumber('--jobs', opts.jobs) : availableParallelism();
+    parseSize(opts.maxFileSize);
+    const queue = opts.queue ? { url: checkQueueUrl(opts.queue), name: opts.queueName } : undefined;
+    const settings: StudySettings = {
+      maxFileSize: opts.maxFileSize,
+      cache: opts.cache !== false,
+      ...(opts.cacheDir ? { cacheDir: resolve(opts.cacheDir) } : {}),
+      update: opts.update !== false,
+      retryFailed: !!opts.retryFailed,
+      analysis: {},
+    };
+    const output = resolve(opts.output);
+    const outcomes = await runStudyJobs({
+      corpus,
+      output,
+      settings,
+      jobs,
+      ...(queue ? { queue } : {}),
+      progress: progressFor(io, !!opts.quiet),
+      onNoWorker: () =>
+        io.stderr.write(
+          `schema-strata: no worker is connected to queue "${queue!.name}" at ${displayUrl(queue!.url)} yet; start \`schema-strata worker --queue ${displayUrl(queue!.url)}\` on machines that see ${output}\n`,
+        ),
+    });
+    io.stdout.write(formatRunSummary(outcomes, opts.output));
+    setCode(outcomes.some((o) => o.status === 'failed') ? EXIT.failure : EXIT.ok);
+  });
+}

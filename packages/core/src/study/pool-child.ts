@@ -1,0 +1,13 @@
+/**
+ * A child process of the study's worker pool (see `pool.ts`): it runs one repository job at a
+ * time and answers with its outcome. It ends when its parent goes away.
+ */
+import { runRepository, type RepositoryJob } from './runner.js';
+
+process.on('disconnect', () => process.exit(0));
+process.on('message', (msg: { id: number; job: RepositoryJob }) => {
+  runRepository(msg.job).then(
+    (result) => process.send?.({ id: msg.id, ok: true, result }),
+    (e: unknown) => process.send?.({ id: msg.id, ok: false, error: e instanceof Error ? e.message : String(e) }),
+  );
+});
