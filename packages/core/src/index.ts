@@ -6,7 +6,7 @@ export type * from './model/types.js';
 export { tableId } from './model/types.js';
 export { canonicalJson, contentHash, canonicalSnapshot, canonicalOrder, formatType, sameType, enumValues, tableHash } from './model/canonical.js';
 export type * from './adapter/api.js';
-export { loadAdapter, installedAdapters, KNOWN_ADAPTERS, type LoadedAdapter } from './adapter/loader.js';
+export { loadAdapter, installedAdapters, registerAdapterBase, KNOWN_ADAPTERS, type LoadedAdapter } from './adapter/loader.js';
 export { extractHistory, outputOptions, DEFAULT_MAX_FILE_BYTES, type History, type VersionRecord, type VersionStatus, type ExtractRequest, type FileRef } from './history/engine.js';
 export { schemaAt, type SchemaAtCommit } from './history/build-at.js';
 export { detectAdapter } from './history/detect.js';

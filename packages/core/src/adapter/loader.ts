@@ -36,13 +36,24 @@ function safeRealpath(p: string): string {
   }
 }
 
+const extraBases: string[] = [];
+
+/**
+ * Add a place adapters are resolved from (a file URL or path inside a package): a package that
+ * bundles schema-strata with adapters calls it with its own `import.meta.url`, so that its
+ * adapters are found whatever the package manager's layout.
+ */
+export function registerAdapterBase(base: string): void {
+  if (!extraBases.includes(base)) extraBases.push(base);
+}
+
 /**
  * Where a package is resolved from: the user's working project first (the current directory),
- * then schema-strata's own installation. A module inside the analysed repository is never
- * loaded: its code is data to us.
+ * then the registered bases, then schema-strata's own installation. A module inside the
+ * analysed repository is never loaded: its code is data to us.
  */
 function resolvePackage(name: string, analysedRepo?: string): string | undefined {
-  const bases = [join(process.cwd(), 'noop.js'), import.meta.url];
+  const bases = [join(process.cwd(), 'noop.js'), ...extraBases, import.meta.url];
   const repoReal = analysedRepo ? safeRealpath(analysedRepo) : undefined;
   for (const base of bases) {
     try {

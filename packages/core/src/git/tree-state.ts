@@ -83,3 +83,17 @@ export function matcher(globs: readonly string[]): (path: string) => boolean {
   if (globs.length === 0) return () => false;
   return picomatch(globs as string[], { dot: true });
 }
+
+/**
+ * The paths of a tree that `--path` entries select: those a glob matches, and each literal
+ * entry as a file or as a directory (everything under it). Sorted.
+ */
+export function selectUserPaths(view: TreeView, globMatch: (p: string) => boolean, literals: readonly string[]): string[] {
+  const selected = new Set<string>();
+  for (const p of view.paths()) if (globMatch(p)) selected.add(p);
+  for (const n of literals) {
+    if (view.has(n)) selected.add(n);
+    for (const p of view.under(n)) selected.add(p);
+  }
+  return [...selected].sort();
+}

@@ -1,6 +1,6 @@
 import type { AdapterOptionValues, AssembleFile, SchemaAdapter } from '../adapter/api.js';
 import { BlobReader } from '../git/blob-reader.js';
-import { isGlob, matcher } from '../git/tree-state.js';
+import { isGlob, matcher, selectUserPaths } from '../git/tree-state.js';
 import { openRepository } from '../git/repository.js';
 import type { Diagnostic } from '../model/types.js';
 import { UsageError, EXIT } from '../util/errors.js';
@@ -43,14 +43,8 @@ export async function schemaAt(req: {
     const view = tree.view(info.head, reader);
     let located;
     if (userPaths.length > 0) {
-      const match = matcher(userPaths.filter(isGlob));
-      const selected = new Set<string>();
-      for (const p of tree.paths()) if (match(p)) selected.add(p);
-      for (const p of userPaths.filter((x) => !isGlob(x))) {
-        if (view.has(p)) selected.add(p);
-        for (const q of view.under(p)) selected.add(q);
-      }
-      located = await req.adapter.locate(view, { paths: [...selected].sort(), options });
+      const selected = selectUserPaths(view, matcher(userPaths.filter(isGlob)), userPaths.filter((x) => !isGlob(x)));
+      located = await req.adapter.locate(view, { paths: selected, options });
     } else {
       located = await req.adapter.locate(view, { options });
     }

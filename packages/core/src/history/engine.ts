@@ -12,7 +12,7 @@ import { diffSnapshots } from '../changes/diff-snapshots.js';
 import { BlobReader } from '../git/blob-reader.js';
 import { logPass, type LoggedCommit } from '../git/log-pass.js';
 import { firstParentLine, openRepository, resolveRevisions } from '../git/repository.js';
-import { isGlob, matcher, toPathspecs, TreeState } from '../git/tree-state.js';
+import { isGlob, matcher, selectUserPaths, toPathspecs, TreeState } from '../git/tree-state.js';
 import { canonicalJson } from '../model/canonical.js';
 import type { Diagnostic, Table, ViewRef } from '../model/types.js';
 import { UsageError, EXIT } from '../util/errors.js';
@@ -187,15 +187,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
       let located: Located;
       if (userPaths.length > 0) {
         const names = lineage ? lineage[i]! : [];
-        const selected = new Set<string>();
-        for (const p of tree.paths()) {
-          if (userMatch(p)) selected.add(p);
-        }
-        for (const n of names) {
-          if (tree.get(n) !== undefined) selected.add(n);
-          for (const p of view.under(n)) selected.add(p);
-        }
-        located = await adapter.locate(view, { paths: [...selected].sort(), options });
+        located = await adapter.locate(view, { paths: selectUserPaths(view, userMatch, names), options });
       } else {
         located = await adapter.locate(view, { options });
       }
