@@ -4,10 +4,15 @@
  */
 import { runRepository, type RepositoryJob } from './runner.js';
 
+const reply = (m: object): void => {
+  // the parent may be gone (a killed worker): the result is on disk anyway
+  if (process.connected) process.send?.(m, () => undefined);
+};
+
 process.on('disconnect', () => process.exit(0));
 process.on('message', (msg: { id: number; job: RepositoryJob }) => {
   runRepository(msg.job).then(
-    (result) => process.send?.({ id: msg.id, ok: true, result }),
-    (e: unknown) => process.send?.({ id: msg.id, ok: false, error: e instanceof Error ? e.message : String(e) }),
+    (result) => reply({ id: msg.id, ok: true, result }),
+    (e: unknown) => reply({ id: msg.id, ok: false, error: e instanceof Error ? e.message : String(e) }),
   );
 });

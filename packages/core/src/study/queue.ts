@@ -84,16 +84,24 @@ export interface EnqueueOptions {
 export async function runQueued(target: QueueTarget, jobs: RepositoryJob[], opts: EnqueueOptions = {}): Promise<RepositoryOutcome[]> {
   const { Queue, QueueEvents } = await loadBullmq();
   const connection = connectionOf(target.url);
-  const queue = new Queue(target.name, { connection });
-  const events = new QueueEvents(target.name, { connection });
   let lastError: string | undefined;
   const onError = (e: Error): void => {
     lastError = e.message;
   };
+  const queue = new Queue(target.name, { connection });
   queue.on('error', onError);
+  const timeout = opts.connectTimeout ?? 10_000;
+  try {
+    await reachable(queue.waitUntilReady(), target.url, timeout, () => lastError);
+  } catch (e) {
+    await queue.close().catch(() => undefined);
+    throw e;
+  }
+  // the event stream's reader is made only once the server answered (it cannot be closed before)
+  const events = new QueueEvents(target.name, { connection });
   events.on('error', onError);
   try {
-    await reachable(Promise.all([queue.waitUntilReady(), events.waitUntilReady()]), target.url, opts.connectTimeout ?? 10_000, () => lastError);
+    await reachable(events.waitUntilReady(), target.url, timeout, () => lastError);
     if (opts.onNoWorker && (await queue.getWorkersCount()) === 0) opts.onNoWorker();
     const run = randomUUID().slice(0, 8);
     const week = 7 * 24 * 3600;

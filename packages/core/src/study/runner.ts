@@ -11,7 +11,8 @@ import { canonicalJson } from '../model/canonical.js';
 import { writeFileAtomic } from '../util/atomic-write.js';
 import { GENERATOR } from '../version.js';
 import { ensureClone } from './clone.js';
-import type { CorpusEntry } from './corpus.js';
+import type { SchemaAdapter } from '../adapter/api.js';
+import type { CorpusEntry, OptionValue } from './corpus.js';
 import { readState, resultFileOf, resultIntact, sha256, writeState, type ProjectState } from './state.js';
 
 /** Settings of a study that every repository's run shares (they travel with each job). */
@@ -70,6 +71,26 @@ function message(e: unknown): string {
 }
 
 /**
+ * What is wrong with a corpus entry's adapter options, checked as the command line checks
+ * flags: each must be one the adapter declares, of its type, and one of its choices.
+ */
+export function optionProblem(adapter: SchemaAdapter, options: Record<string, OptionValue>): string | undefined {
+  const declared = new Map((adapter.options ?? []).map((o) => [o.flag, o]));
+  const unknown = Object.keys(options).filter((f) => !declared.has(f));
+  if (unknown.length > 0) {
+    const known = [...declared.keys()].map((f) => `--${f}`).join(', ') || 'none';
+    return `unknown option${unknown.length > 1 ? 's' : ''} ${unknown.map((f) => `--${f}`).join(', ')} for adapter ${adapter.name} (its options: ${known})`;
+  }
+  for (const [flag, v] of Object.entries(options)) {
+    const o = declared.get(flag)!;
+    const type = Array.isArray(v) ? 'string[]' : typeof v === 'boolean' ? 'boolean' : 'string';
+    if (type !== o.type) return `option --${flag} of adapter ${adapter.name} takes ${o.type === 'boolean' ? 'true or false' : o.type === 'string' ? 'a string' : 'a list of strings'}`;
+    if (o.choices && typeof v === 'string' && !o.choices.includes(v)) return `option --${flag} of adapter ${adapter.name}: "${v}" is not one of ${o.choices.join(', ')}`;
+  }
+  return undefined;
+}
+
+/**
  * The options of one repository's extraction, settled as `extract` settles them: the corpus
  * entry plays the part of the command line (it wins over the repository's own configuration
  * file, which is read as data).
@@ -113,12 +134,8 @@ export async function runRepository(job: RepositoryJob): Promise<RepositoryOutco
     if (entry.remote) location = await ensureClone(entry.location, cloneDirOf(settings), settings.update);
     const opts = await extractOptionsOf(job, location);
     const loaded = await resolveAdapter(opts.adapter, location, entry.ref, opts.path);
-    const declared = new Set((loaded.adapter.options ?? []).map((o) => o.flag));
-    const unknown = Object.keys(entry.options).filter((f) => !declared.has(f));
-    if (unknown.length > 0) {
-      const known = [...declared].map((f) => `--${f}`).join(', ') || 'none';
-      return { label, status: 'failed', reason: `unknown option${unknown.length > 1 ? 's' : ''} ${unknown.map((f) => `--${f}`).join(', ')} for adapter ${loaded.adapter.name} (its options: ${known})` };
-    }
+    const problem = optionProblem(loaded.adapter, entry.options);
+    if (problem) return { label, status: 'failed', reason: problem };
     head = (await openRepository(location, entry.ref)).head;
     const adapterValues: Record<string, unknown> = {};
     for (const o of loaded.adapter.options ?? []) if (opts[camel(o.flag)] !== undefined) adapterValues[o.flag] = opts[camel(o.flag)];
