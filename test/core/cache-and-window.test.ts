@@ -20,7 +20,9 @@ const steps = [
 
 async function history(name: string): Promise<string> {
   return makeRepo(tmp.dir, name, steps.map((s, i) => ({
-    date: day(i * 40), message: `step ${i}`, files: i === 3 ? { 'README.md': 'no schema change\n' } : { 'prisma/schema.prisma': s },
+    date: day(i * 40),
+    message: `step ${i}`,
+    files: (i === 3 ? { 'README.md': 'no schema change\n' } : { 'prisma/schema.prisma': s }) as Record<string, string>,
   })));
 }
 

@@ -43,7 +43,7 @@ export function registerDemo(program: Command, io: CliIO, setCode: (c: number) =
       await writeRepository(repo, commits);
       writeFileSync(join(out, MARKER), 'made by schema-strata demo; safe to delete\n');
       const extractOpts: ExtractOptions = {
-        adapter: opts.adapter, ref: 'HEAD', output: join(out, 'history.json'), maxFileSize: '5MB', cache: false, quiet: opts.quiet,
+        adapter: opts.adapter, ref: 'HEAD', output: join(out, 'history.json'), maxFileSize: '5MB', cache: false, quiet: opts.quiet, analyze: true,
       };
       const { doc } = await runExtract(repo, extractOpts, io);
       writeFileAtomic(extractOpts.output, serialiseDocument(doc));

@@ -17,6 +17,7 @@ import {
 } from './common.js';
 import type { SchemaAdapter } from '../adapter/api.js';
 import { summariseDiagnostics } from './format.js';
+import { addAnalysisOptions } from './analysis-options.js';
 
 export interface ExtractOptions {
   adapter: string;
@@ -75,7 +76,9 @@ export function registerExtract(program: Command, io: CliIO, adapters: SchemaAda
     .option('--until <date|rev>', 'last version is the last one at or before this date or revision')
     .option('-o, --output <file>', 'where to write the file; - for standard output', 'history.json')
     .option('--strict', 'exit with code 3 when any diagnostic of severity error was reported')
-    .option('--quiet', 'no progress and no summary on standard error');
+    .option('--quiet', 'no progress and no summary on standard error')
+    .option('--analyze', 'embed the analysis (measures and statistics) in the file; takes the options of `analyze`');
+  addAnalysisOptions(cmd, { renamesDefault: 'stated' });
   addRepositoryOptions(cmd);
   addAdapterOptions(cmd, adapters);
   cmd.action(async (repo: string, opts: ExtractOptions) => {

@@ -8,9 +8,12 @@ import { registerDemo } from './demo-command.js';
 import { registerExtract } from './extract-command.js';
 import { registerShow } from './show-command.js';
 import { registerAdapters } from './adapters-command.js';
+import { registerAnalyze } from './analyze-command.js';
+import { registerDiff } from './diff-command.js';
+import { registerExport } from './export-command.js';
 
 /** Commands that other modules of core add (analysis, writers), registered in order. */
-export const commandRegistry: Array<(program: Command, io: CliIO, setCode: (c: number) => void) => void> = [];
+export const commandRegistry: Array<(program: Command, io: CliIO, setCode: (c: number) => void) => void> = [registerAnalyze, registerExport];
 
 const EXIT_CODES_HELP = `
 Exit codes:
@@ -46,6 +49,7 @@ export async function main(argv: string[], io: CliIO = { stdout: process.stdout,
   const adapters = await adaptersForOptions(argv);
   registerExtract(program, io, adapters, setCode);
   registerShow(program, io, adapters, setCode);
+  registerDiff(program, io, adapters, setCode);
   for (const reg of commandRegistry) reg(program, io, setCode);
   registerAdapters(program, io, setCode);
   registerDemo(program, io, setCode);

@@ -1,0 +1,27 @@
+import mt19937 from '@stdlib/random-base-mt19937';
+
+/** A seeded source of uniform integers (32-bit Mersenne Twister, as R and numpy's legacy generator use). */
+export class SeededRandom {
+  private readonly next: () => number;
+  constructor(readonly seed: number) {
+    this.next = mt19937.factory({ seed });
+  }
+
+  /** A uniform integer in [0, n), without modulo bias (draws above the last whole multiple of n are redrawn). */
+  below(n: number): number {
+    const limit = Math.floor(4294967296 / n) * n;
+    let x = this.next();
+    while (x >= limit) x = this.next();
+    return x % n;
+  }
+
+  /** Shuffle an array in place (Fisher-Yates). */
+  shuffle<T>(a: T[] | Int32Array): void {
+    for (let i = a.length - 1; i > 0; i--) {
+      const j = this.below(i + 1);
+      const t = a[i]!;
+      a[i] = a[j]!;
+      a[j] = t;
+    }
+  }
+}
