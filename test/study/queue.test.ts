@@ -27,6 +27,7 @@ afterAll(async () => {
 
 const projectFiles = (dir: string): string[] => readdirSync(dir).filter((f) => f.endsWith('.json') && f !== 'study.json').sort();
 
+
 describe('study --queue: a BullMQ queue on a real redis-server, two worker processes', () => {
   it('takes up the job of a worker killed mid-job; every result is there, byte-identical to a local study, none lost or counted twice', async () => {
     const local = join(tmp.dir, 'local');
@@ -61,6 +62,12 @@ describe('study --queue: a BullMQ queue on a real redis-server, two worker proce
     // every result present and byte-identical to the local run's
     expect(projectFiles(shared)).toEqual(projectFiles(local));
     for (const f of projectFiles(local)) expect(readFileSync(join(shared, f)).equals(readFileSync(join(local, f))), f).toBe(true);
+
+    // the pooled study is the same bytes too
+    for (const f of ['study.json', 'tables.csv', 'projects.csv']) expect(readFileSync(join(shared, f)).equals(readFileSync(join(local, f))), f).toBe(true);
+    const pooled = JSON.parse(readFileSync(join(shared, 'study.json'), 'utf8'));
+    expect(pooled.projects.map((p: { label: string; status: string }) => `${p.label} ${p.status}`)).toEqual(labels.map((x) => `${x} done`));
+    expect(pooled.analysis.pooled.units).toBe(pooled.analysis.projects.reduce((n: number, r: { included: number }) => n + r.included, 0));
 
     // the queue: six completed jobs, nothing failed, waiting or active
     expect(redis!.cli('ZCARD', 'bull:killtest:completed')).toBe('6');

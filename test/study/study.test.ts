@@ -20,7 +20,7 @@ const json = (f: string): Record<string, any> => JSON.parse(readFileSync(f, 'utf
 const projectFiles = (dir: string): string[] => readdirSync(dir).filter((f) => f.endsWith('.json') && f !== 'study.json').sort();
 
 describe('study: one interchange file per repository', () => {
-  it('writes DIR/<label>.json, the same bytes as `extract` writes for the same repository and options', () => {
+  it('writes DIR/<label>.json, the same bytes as `extract --analyze` writes for the same repository and options', () => {
     const corpus = writeCorpus(join(repos, 'corpus.json'), {
       defaults: { adapter: 'prisma' },
       repositories: [
@@ -34,10 +34,10 @@ describe('study: one interchange file per repository', () => {
     expect(r.code).toBe(0);
     expect(r.stdout).toContain('study of 3 repositories: 3 extracted, 0 unchanged since the last run, 0 failed');
     expect(projectFiles(out)).toEqual(['coop3.json', 'north-shed.json', 'south-shed.json']);
-    // the oracle: `extract` run by hand in the corpus's folder, with the options of each entry
+    // the oracle: `extract --analyze` run by hand in the corpus's folder, with the options of each entry
     const byHand = (name: string, args: string[]): Buffer => {
       const f = join(tmp.dir, `${name}-by-hand.json`);
-      const e = runCli(['extract', ...args, '--adapter', 'prisma', '--no-cache', '--quiet', '-o', f], { cwd: repos });
+      const e = runCli(['extract', ...args, '--analyze', '--adapter', 'prisma', '--no-cache', '--quiet', '-o', f], { cwd: repos });
       expect(e.code).toBe(0);
       return readFileSync(f);
     };
@@ -55,6 +55,28 @@ describe('study: one interchange file per repository', () => {
     expect(r.code).toBe(0);
     expect(projectFiles(out)).toEqual(['coop1.json', 'coop2.json']);
     expect(json(join(out, 'coop1.json')).source.repository).toBe('coop1');
+  });
+});
+
+describe('study: the analysis options', () => {
+  it('reach every project as `extract --analyze` takes them, and a change of them makes the projects run again', () => {
+    const list = join(repos, 'two.txt');
+    writeFileSync(list, 'coop1\ncoop2\n');
+    const out = join(tmp.dir, 'out-options');
+    const r = runCli(['study', list, '-o', out, '--no-cache', '--quiet', '--high-above', '2', '--count', 'column-added,column-removed']);
+    expect(r.code).toBe(0);
+    const f = join(tmp.dir, 'coop1-options.json');
+    expect(runCli(['extract', 'coop1', '--analyze', '--high-above', '2', '--count', 'column-added,column-removed', '--no-cache', '--quiet', '-o', f], { cwd: repos }).code).toBe(0);
+    expect(readFileSync(join(out, 'coop1.json')).equals(readFileSync(f))).toBe(true);
+    expect(json(join(out, 'study.json')).analysis.options.highAbove).toBe(2);
+    const same = runCli(['study', list, '-o', out, '--no-cache', '--quiet', '--high-above', '2', '--count', 'column-added,column-removed']);
+    expect(same.stdout).toContain('0 extracted, 2 unchanged');
+    const other = runCli(['study', list, '-o', out, '--no-cache', '--quiet', '--high-above', '3']);
+    expect(other.stdout).toContain('2 extracted, 0 unchanged');
+    expect(json(join(out, 'coop2.json')).analysis.options.highAbove).toBe(3);
+    const bad = runCli(['study', list, '-o', out, '--high-above', 'lots']);
+    expect(bad.code).toBe(2);
+    expect(bad.stderr.trim()).toBe('schema-strata: --high-above lots: not a number');
   });
 });
 
@@ -157,7 +179,7 @@ describe('study: repositories named by clone URL', () => {
     expect(JSON.stringify(doc)).not.toContain(cache);
     // the same history read from its local path gives the same file but for the repository field
     const local = join(root, 'local.json');
-    expect(runCli(['extract', origin!, '--adapter', 'prisma', '--no-cache', '--quiet', '-o', local]).code).toBe(0);
+    expect(runCli(['extract', origin!, '--analyze', '--adapter', 'prisma', '--no-cache', '--quiet', '-o', local]).code).toBe(0);
     const l = json(local);
     l.source.repository = url;
     expect(doc).toEqual(l);

@@ -7,8 +7,12 @@ import { readCorpus } from '../study/corpus.js';
 import { checkQueueUrl, DEFAULT_QUEUE_NAME, displayUrl } from '../study/queue.js';
 import { runStudyJobs } from '../study/run-study.js';
 import type { StudySettings } from '../study/runner.js';
-import { formatRunSummary } from '../study/study-text.js';
-import { parseSize, progressFor, type CliIO } from './common.js';
+import { buildStudy, writeStudy } from '../study/study-document.js';
+import { formatRunSummary, studyText } from '../study/study-text.js';
+import { resolveAnalysisOptions } from '../analysis/options.js';
+import { addAnalysisOptions, ANALYSIS_OPTION_KEYS, checkedAnalysisOptions, type AnalysisCliOptions } from './analysis-options.js';
+import { parseSize, progressFor, useColor, type CliIO } from './common.js';
+import { colorStyle, plainStyle } from './format.js';
 
 export interface StudyCliOptions {
   output: string;
@@ -45,19 +49,25 @@ export function registerStudy(program: Command, io: CliIO, setCode: (c: number) 
     .option('--no-cache', 'neither read nor write the parse cache (clones are still kept)')
     .option('--no-update', 'read clones already in the cache as they are, without fetching')
     .option('--retry-failed', 'run again the repositories whose last run failed with the same inputs')
-    .option('--quiet', 'no progress on standard error');
-  cmd.action(async (corpusFile: string, opts: StudyCliOptions) => {
+    .option('--quiet', 'no progress on standard error')
+    .option('--no-color', 'no colours (NO_COLOR is respected too)');
+  addAnalysisOptions(cmd, { renamesDefault: 'stated' });
+  cmd.action(async (corpusFile: string, opts: StudyCliOptions & AnalysisCliOptions) => {
     const corpus = readCorpus(corpusFile);
     const jobs = opts.jobs !== undefined ? wholeNumber('--jobs', opts.jobs) : availableParallelism();
     parseSize(opts.maxFileSize);
     const queue = opts.queue ? { url: checkQueueUrl(opts.queue), name: opts.queueName } : undefined;
+    // the analysis options travel with every job (each project is analysed where it is extracted)
+    const options = resolveAnalysisOptions(checkedAnalysisOptions(opts));
+    const analysis: Record<string, unknown> = {};
+    for (const k of ANALYSIS_OPTION_KEYS) if (opts[k] !== undefined) analysis[k] = opts[k];
     const settings: StudySettings = {
       maxFileSize: opts.maxFileSize,
       cache: opts.cache !== false,
       ...(opts.cacheDir ? { cacheDir: resolve(opts.cacheDir) } : {}),
       update: opts.update !== false,
       retryFailed: !!opts.retryFailed,
-      analysis: {},
+      analysis,
     };
     const output = resolve(opts.output);
     const outcomes = await runStudyJobs({
@@ -73,6 +83,10 @@ export function registerStudy(program: Command, io: CliIO, setCode: (c: number) 
         ),
     });
     io.stdout.write(formatRunSummary(outcomes, opts.output));
+    const { study, projects } = buildStudy(output, outcomes, new Map(corpus.entries.map((e) => [e.label, e.repository])), options);
+    const written = writeStudy(output, study, projects);
+    io.stdout.write(`wrote ${written.join(', ')} in ${opts.output}\n\n`);
+    io.stdout.write(studyText(study, useColor(io, opts.color as boolean | undefined) ? colorStyle : plainStyle));
     setCode(outcomes.some((o) => o.status === 'failed') ? EXIT.failure : EXIT.ok);
   });
 }

@@ -2,7 +2,8 @@ import type { Command } from 'commander';
 import { Writable } from 'node:stream';
 import { join } from 'node:path';
 import { applyConfig, resolveAdapter, type CliIO } from '../cli/common.js';
-import { runExtract, type ExtractOptions } from '../cli/extract-command.js';
+import { extractStep } from '../cli/analyze-command.js';
+import { extractHooks, runExtract, type ExtractOptions } from '../cli/extract-command.js';
 import { openRepository } from '../git/repository.js';
 import { defaultCacheDir } from '../history/disk-cache.js';
 import { outputOptions } from '../history/engine.js';
@@ -159,6 +160,8 @@ export async function runRepository(job: RepositoryJob): Promise<RepositoryOutco
       if (before.status === 'done' && resultIntact(output, before)) return { label, status: 'unchanged', head, result: before.result! };
       if (before.status === 'failed' && !settings.retryFailed) return { label, status: 'failed', reason: before.reason ?? 'failed', earlier: true, head };
     }
+    // the analysis embeds itself as in `extract --analyze` (the same step; registered once)
+    if (!extractHooks.includes(extractStep)) extractHooks.push(extractStep);
     const { doc, errors } = await runExtract(location, { ...opts, adapter: loaded.source }, silentIO());
     // the file names the repository as the corpus wrote it, never the clone cache
     doc.source.repository = entry.repository;
@@ -169,7 +172,8 @@ export async function runRepository(job: RepositoryJob): Promise<RepositoryOutco
     writeState(output, { label, key, head, status: 'done', result });
     return { label, status: 'extracted', head, result };
   } catch (e) {
-    const reason = message(e);
+    // messages name the repository as the corpus does, not the absolute path or the clone
+    const reason = message(e).split(location).join(entry.repository).split(entry.location).join(entry.repository);
     if (key && head) writeState(output, { label, key, head, status: 'failed', reason });
     return { label, status: 'failed', reason, ...(head ? { head } : {}) };
   }
