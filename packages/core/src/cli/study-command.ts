@@ -35,6 +35,29 @@ export function wholeNumber(flag: string, v: string, min = 1): number {
   return n;
 }
 
+const STUDY_HELP = `
+Corpus (JSON; relative paths are relative to the corpus file):
+  { "defaults": { "adapter": "prisma" },
+    "repositories": [
+      { "label": "north-shed", "repository": "repos/north-shed", "paths": ["prisma/schema.prisma"] },
+      { "label": "south-shed", "repository": "https://example.org/coop/south-shed.git", "ref": "main",
+        "options": { "prisma-join-key": "unique" } },
+      "repos/river-shed" ] }
+  keys of a repository: label, repository (path or clone URL), adapter, paths, ref, since, until,
+  options (adapter options by flag name). A text file with one path or URL per line also works.
+
+Output in DIR: <label>.json per repository (as \`extract --analyze\` writes it), study.json (the
+pooled study), tables.csv (every project's tables, with a project column), projects.csv.
+A re-run skips the repositories whose head commit and options are unchanged.
+
+On several machines: start \`schema-strata worker --queue redis://HOST:PORT\` on each machine
+that sees DIR (shared storage, mounted at the same path or given with worker -o), then run
+\`schema-strata study corpus.json -o DIR --queue redis://HOST:PORT\`.
+
+Exit codes: 0 every repository done; 1 one or more failed (the others are done and pooled; the
+summary lists each failure with its reason); 2 usage error.
+`;
+
 export function registerStudy(program: Command, io: CliIO, setCode: (c: number) => void): void {
   const cmd = program
     .command('study')
@@ -52,6 +75,7 @@ export function registerStudy(program: Command, io: CliIO, setCode: (c: number) 
     .option('--quiet', 'no progress on standard error')
     .option('--no-color', 'no colours (NO_COLOR is respected too)');
   addAnalysisOptions(cmd, { renamesDefault: 'stated' });
+  cmd.addHelpText('after', STUDY_HELP);
   cmd.action(async (corpusFile: string, opts: StudyCliOptions & AnalysisCliOptions) => {
     const corpus = readCorpus(corpusFile);
     const jobs = opts.jobs !== undefined ? wholeNumber('--jobs', opts.jobs) : availableParallelism();

@@ -103,6 +103,8 @@ export async function runQueued(target: QueueTarget, jobs: RepositoryJob[], opts
   try {
     await reachable(events.waitUntilReady(), target.url, timeout, () => lastError);
     if (opts.onNoWorker && (await queue.getWorkersCount()) === 0) opts.onNoWorker();
+    // every waiting job listens for the queue's closing: one listener each
+    queue.setMaxListeners(jobs.length + 16);
     const run = randomUUID().slice(0, 8);
     const week = 7 * 24 * 3600;
     const added: Job[] = await queue.addBulk(
