@@ -1,9 +1,12 @@
+import { spawnSync } from 'node:child_process';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
+import Ajv2020 from 'ajv/dist/2020.js';
+import addFormats from 'ajv-formats';
 import { parse } from 'csv-parse/sync';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { loadStudy } from '@schema-strata/core';
-import { runCli, tempDir } from '../helpers/repo.js';
+import { ROOT, runCli, tempDir } from '../helpers/repo.js';
 import { makeSyntheticRepos, writeCorpus } from './synthetic.js';
 
 const tmp = tempDir('strata-study-analysis-');
@@ -99,6 +102,22 @@ describe('study analysis: per project, pooled, and stratified by project', () =>
     expect(stdout).toContain('Pooled: topology class by birth group');
     expect(stdout).toContain('Within projects (stratified by project)');
     expect(stdout).toContain('association only');
+  });
+
+  it('study.json is valid against packages/core/schema/study.schema.json (ajv, a JSON Schema 2020-12 reference implementation), which is current', () => {
+    const schemaDir = join(ROOT, 'packages', 'core', 'schema');
+    const ajv = new (Ajv2020 as unknown as typeof Ajv2020.default)({ allErrors: true, strict: true });
+    (addFormats as unknown as typeof addFormats.default)(ajv);
+    ajv.addSchema(JSON.parse(readFileSync(join(schemaDir, 'history.schema.json'), 'utf8')));
+    const validate = ajv.compile(JSON.parse(readFileSync(join(schemaDir, 'study.schema.json'), 'utf8')));
+    const ok = validate(JSON.parse(readFileSync(join(out, 'study.json'), 'utf8')));
+    expect(validate.errors ?? []).toEqual([]);
+    expect(ok).toBe(true);
+    // a study with a failed project and one without any done project are valid too
+    expect(validate({ format: 'schema-strata-study', formatVersion: '1.0.0', generator: { name: 'schema-strata', version: '0.1.0' }, projects: [{ label: 'gone', repository: 'gone', status: 'failed', reason: 'gone: no such directory' }], analysis: null })).toBe(true);
+    const check = spawnSync(process.execPath, [join(ROOT, 'scripts', 'make-study-schema.mjs'), '--check'], { encoding: 'utf8' });
+    expect(check.stderr).toBe('');
+    expect(check.status).toBe(0);
   });
 
   it('study.json is the same bytes when the study is run again (nothing redone) and when pooled from scratch', () => {

@@ -10,7 +10,7 @@ import type { StudySettings } from '../study/runner.js';
 import { buildStudy, writeStudy } from '../study/study-document.js';
 import { formatRunSummary, studyText } from '../study/study-text.js';
 import { resolveAnalysisOptions } from '../analysis/options.js';
-import { addAnalysisOptions, ANALYSIS_OPTION_KEYS, checkedAnalysisOptions, type AnalysisCliOptions } from './analysis-options.js';
+import { addAnalysisOptions, ANALYSIS_OPTION_KEYS, checkedAnalysisOptions, renameRequest, type AnalysisCliOptions } from './analysis-options.js';
 import { parseSize, progressFor, useColor, type CliIO } from './common.js';
 import { colorStyle, plainStyle } from './format.js';
 
@@ -82,7 +82,7 @@ export function registerStudy(program: Command, io: CliIO, setCode: (c: number) 
     parseSize(opts.maxFileSize);
     const queue = opts.queue ? { url: checkQueueUrl(opts.queue), name: opts.queueName } : undefined;
     // the analysis options travel with every job (each project is analysed where it is extracted)
-    const options = resolveAnalysisOptions(checkedAnalysisOptions(opts));
+    const options = { ...resolveAnalysisOptions(checkedAnalysisOptions(opts)), renames: renameRequest(opts)?.mode ?? ('stated' as const) };
     const analysis: Record<string, unknown> = {};
     for (const k of ANALYSIS_OPTION_KEYS) if (opts[k] !== undefined) analysis[k] = opts[k];
     const settings: StudySettings = {

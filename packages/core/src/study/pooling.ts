@@ -8,6 +8,9 @@ import type { Analysis, ContingencyAnalysis, Statistics, TableMeasures } from '.
 import type { InterchangeDocument } from '../interchange/document.js';
 import { cochranMantelHaenszel, type StratifiedResult } from './stratified.js';
 
+/** The analysis options of a study: those of every project, with the rename detection asked for. */
+export type StudyOptions = AnalysisOptions & { renames: 'stated' | 'heuristic' };
+
 /** One project's row of the study: what it is, and how its tables fall into the classes, groups and bands. */
 export interface ProjectRow {
   project: string;
@@ -33,8 +36,8 @@ export type StratifiedTest = StratifiedResult & { reading: string };
 
 /** The pooled analysis of a study (the `analysis` of study.json). */
 export interface StudyAnalysis {
-  /** The analysis options every project was analysed with. */
-  options: AnalysisOptions;
+  /** The analysis options every project was analysed with, and the rename detection asked for. */
+  options: StudyOptions;
   /** One row per project, in corpus order: the projects side by side. */
   projects: ProjectRow[];
   /** Each project's own statistics (its contingency tables and tests). */
@@ -113,7 +116,7 @@ function stratify(subject: string, per: ReadonlyArray<{ project: string; c: Cont
  * activity band with projects as strata. A pure function of its input; `options` must be
  * those every project was analysed with (the statistics' settings: alpha, the exact test).
  */
-export function analyseStudy(projects: readonly StudyProject[], options: AnalysisOptions): StudyAnalysis {
+export function analyseStudy(projects: readonly StudyProject[], options: StudyOptions): StudyAnalysis {
   const rows = projects.map(projectRow);
   const perProject = projects.map((p) => ({ project: p.label, statistics: p.analysis.statistics }));
   const units: TableMeasures[] = projects.flatMap((p) =>

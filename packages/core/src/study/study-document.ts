@@ -8,7 +8,7 @@ import { FORMAT_NAME, serialiseDocument, type InterchangeDocument } from '../int
 import { writeFileAtomic } from '../util/atomic-write.js';
 import { UsageError, EXIT } from '../util/errors.js';
 import { GENERATOR } from '../version.js';
-import { analyseStudy, type StudyAnalysis, type StudyProject } from './pooling.js';
+import { analyseStudy, type StudyAnalysis, type StudyOptions, type StudyProject } from './pooling.js';
 import type { RepositoryOutcome } from './runner.js';
 import { studyProjectsCsv, studyTablesCsv } from './study-csv.js';
 import { resultFileOf } from './state.js';
@@ -56,7 +56,7 @@ export function readProject(dir: string, label: string, options: AnalysisOptions
  * Build the study of a run: the projects in corpus order (`outcomes`), the done ones read from
  * `dir` and pooled. The repository of a project is named as the corpus wrote it.
  */
-export function buildStudy(dir: string, outcomes: readonly RepositoryOutcome[], repositories: ReadonlyMap<string, string>, options: AnalysisOptions): { study: StudyDocument; projects: StudyProject[] } {
+export function buildStudy(dir: string, outcomes: readonly RepositoryOutcome[], repositories: ReadonlyMap<string, string>, options: StudyOptions): { study: StudyDocument; projects: StudyProject[] } {
   const projects: StudyProject[] = [];
   const entries: StudyProjectEntry[] = outcomes.map((o) => {
     const repository = repositories.get(o.label) ?? '';
