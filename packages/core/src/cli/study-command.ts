@@ -1,3 +1,4 @@
+import { mkdirSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
 import { resolve } from 'node:path';
 import type { Command } from 'commander';
@@ -94,6 +95,11 @@ export function registerStudy(program: Command, io: CliIO, setCode: (c: number) 
       analysis,
     };
     const output = resolve(opts.output);
+    try {
+      mkdirSync(output, { recursive: true });
+    } catch (e) {
+      throw new UsageError(`-o ${opts.output}: cannot make the output directory (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`, EXIT.failure);
+    }
     const outcomes = await runStudyJobs({
       corpus,
       output,
