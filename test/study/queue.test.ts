@@ -83,6 +83,19 @@ describe('study --queue: a BullMQ queue on a real redis-server, two worker proce
     expect(b.stderr()).toContain('stopped');
   });
 
+  it('a result that a worker wrote where the study does not see it is a failure that says why', async () => {
+    const one = writeCorpus(join(tmp.dir, 'one.json'), { defaults: { adapter: 'prisma' }, repositories: [{ repository: labels[0] }] });
+    const q = ['--queue', redis!.url, '--queue-name', 'elsewhere'];
+    const w = startCli(['worker', ...q, '--jobs', '1', '--no-cache', '-o', join(tmp.dir, 'not-shared')]);
+    workers.push(w);
+    await w.waitForLine(/waiting for jobs/);
+    const s = startCli(['study', one, '-o', join(tmp.dir, 'seen'), ...q, '--no-cache', '--quiet']);
+    expect(await s.exited).toBe(1);
+    expect(s.stdout()).toContain(`  ${labels[0]}: its result ${labels[0]}.json is not in the output directory (with --queue, the directory must be shared storage that every worker sees)`);
+    expect(readdirSync(join(tmp.dir, 'not-shared'))).toContain(`${labels[0]}.json`);
+    await stopProcess(w);
+  });
+
   it('fails in one line when the Redis server cannot be reached', () => {
     const r = runCli(['study', corpus, '-o', join(tmp.dir, 'nowhere'), '--queue', 'redis://127.0.0.1:1', '--quiet']);
     expect(r.code).toBe(1);

@@ -112,11 +112,14 @@ export function registerStudy(program: Command, io: CliIO, setCode: (c: number) 
           `schema-strata: no worker is connected to queue "${queue!.name}" at ${displayUrl(queue!.url)} yet; start \`schema-strata worker --queue ${displayUrl(queue!.url)}\` on machines that see ${output}\n`,
         ),
     });
-    io.stdout.write(formatRunSummary(outcomes, opts.output));
     const { study, projects } = buildStudy(output, outcomes, new Map(corpus.entries.map((e) => [e.label, e.repository])), options);
+    // a result that could not be read when pooling is a failure of its repository too
+    const unread = new Map(study.projects.filter((p) => p.status === 'failed').map((p) => [p.label, p.reason]));
+    const final = outcomes.map((o) => (o.status !== 'failed' && unread.has(o.label) ? { ...o, status: 'failed' as const, reason: unread.get(o.label) } : o));
+    io.stdout.write(formatRunSummary(final, opts.output));
     const written = writeStudy(output, study, projects);
     io.stdout.write(`wrote ${written.join(', ')} in ${opts.output}\n\n`);
     io.stdout.write(studyText(study, useColor(io, opts.color as boolean | undefined) ? colorStyle : plainStyle));
-    setCode(outcomes.some((o) => o.status === 'failed') ? EXIT.failure : EXIT.ok);
+    setCode(final.some((o) => o.status === 'failed') ? EXIT.failure : EXIT.ok);
   });
 }

@@ -61,7 +61,13 @@ export function buildStudy(dir: string, outcomes: readonly RepositoryOutcome[], 
   const entries: StudyProjectEntry[] = outcomes.map((o) => {
     const repository = repositories.get(o.label) ?? '';
     if (o.status === 'failed') return { label: o.label, repository, status: 'failed', reason: o.reason ?? 'failed', ...(o.head ? { head: o.head } : {}) };
-    projects.push(readProject(dir, o.label, options));
+    try {
+      projects.push(readProject(dir, o.label, options));
+    } catch (e) {
+      // a worker wrote it where this machine does not see it, or it was removed meanwhile
+      const why = (e as NodeJS.ErrnoException).code === 'ENOENT' ? 'is not in the output directory (with --queue, the directory must be shared storage that every worker sees)' : `cannot be read (${(e as Error).message})`;
+      return { label: o.label, repository, status: 'failed', reason: `its result ${o.label}.json ${why}`, ...(o.head ? { head: o.head } : {}) };
+    }
     return { label: o.label, repository, status: 'done', file: `${o.label}.json`, head: o.head! };
   });
   return {
