@@ -1,5 +1,5 @@
 import { spawnSync } from 'node:child_process';
-import { readFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import Ajv2020 from 'ajv/dist/2020.js';
 import addFormats from 'ajv-formats';
@@ -125,7 +125,14 @@ describe('study analysis: per project, pooled, and stratified by project', () =>
     const corpus = join(tmp.dir, 'corpus.json');
     const again = runCli(['study', corpus, '-o', out, '--no-cache', '--quiet']);
     expect(again.stdout).toContain('0 extracted, 3 unchanged');
+    expect(again.stdout).toContain('the pooled study is unchanged: study.json, tables.csv, projects.csv');
     expect(readFileSync(join(out, 'study.json')).equals(before)).toBe(true);
+    // a pooled file changed by hand is made again
+    const tables = readFileSync(join(out, 'tables.csv'));
+    writeFileSync(join(out, 'tables.csv'), 'project\r\n');
+    const third = runCli(['study', corpus, '-o', out, '--no-cache', '--quiet']);
+    expect(third.stdout).toContain('wrote study.json, tables.csv, projects.csv');
+    expect(readFileSync(join(out, 'tables.csv')).equals(tables)).toBe(true);
     const fresh = join(tmp.dir, 'fresh');
     expect(runCli(['study', corpus, '-o', fresh, '--jobs', '1', '--cache-dir', join(tmp.dir, 'cache'), '--quiet']).code).toBe(0);
     expect(readFileSync(join(fresh, 'study.json')).equals(before)).toBe(true);

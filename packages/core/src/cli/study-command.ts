@@ -8,7 +8,7 @@ import { readCorpus } from '../study/corpus.js';
 import { checkQueueUrl, DEFAULT_QUEUE_NAME, displayUrl } from '../study/queue.js';
 import { runStudyJobs } from '../study/run-study.js';
 import type { StudySettings } from '../study/runner.js';
-import { buildStudy, writeStudy } from '../study/study-document.js';
+import { poolStudy } from '../study/study-document.js';
 import { formatRunSummary, studyText } from '../study/study-text.js';
 import { resolveAnalysisOptions } from '../analysis/options.js';
 import { addAnalysisOptions, ANALYSIS_OPTION_KEYS, checkedAnalysisOptions, renameRequest, type AnalysisCliOptions } from './analysis-options.js';
@@ -112,13 +112,12 @@ export function registerStudy(program: Command, io: CliIO, setCode: (c: number) 
           `schema-strata: no worker is connected to queue "${queue!.name}" at ${displayUrl(queue!.url)} yet; start \`schema-strata worker --queue ${displayUrl(queue!.url)}\` on machines that see ${output}\n`,
         ),
     });
-    const { study, projects } = buildStudy(output, outcomes, new Map(corpus.entries.map((e) => [e.label, e.repository])), options);
+    const { study, written, reused } = poolStudy(output, outcomes, new Map(corpus.entries.map((e) => [e.label, e.repository])), options);
     // a result that could not be read when pooling is a failure of its repository too
     const unread = new Map(study.projects.filter((p) => p.status === 'failed').map((p) => [p.label, p.reason]));
     const final = outcomes.map((o) => (o.status !== 'failed' && unread.has(o.label) ? { ...o, status: 'failed' as const, reason: unread.get(o.label) } : o));
     io.stdout.write(formatRunSummary(final, opts.output));
-    const written = writeStudy(output, study, projects);
-    io.stdout.write(`wrote ${written.join(', ')} in ${opts.output}\n\n`);
+    io.stdout.write(reused ? `the pooled study is unchanged: ${written.join(', ')} in ${opts.output}\n\n` : `wrote ${written.join(', ')} in ${opts.output}\n\n`);
     io.stdout.write(studyText(study, useColor(io, opts.color as boolean | undefined) ? colorStyle : plainStyle));
     setCode(final.some((o) => o.status === 'failed') ? EXIT.failure : EXIT.ok);
   });

@@ -11,7 +11,8 @@ import { GENERATOR } from '../version.js';
 import { analyseStudy, type StudyAnalysis, type StudyOptions, type StudyProject } from './pooling.js';
 import type { RepositoryOutcome } from './runner.js';
 import { studyProjectsCsv, studyTablesCsv } from './study-csv.js';
-import { resultFileOf } from './state.js';
+import { resultFileOf, sha256, STATE_DIR } from './state.js';
+import { canonicalJson } from '../model/canonical.js';
 
 export const STUDY_FORMAT_NAME = 'schema-strata-study';
 export const STUDY_FORMAT_VERSION = '1.0.0';
@@ -92,6 +93,46 @@ export function writeStudy(dir: string, study: StudyDocument, projects: readonly
     written.push('tables.csv', 'projects.csv');
   }
   return written;
+}
+
+/** What the study remembers of its last pooling (`DIR/.study-state/_pooled.json`; no label starts with `_`). */
+interface PoolState {
+  key: string;
+  files: Record<string, string>;
+}
+
+/**
+ * Pool a study's projects into `dir` (study.json, tables.csv, projects.csv), or keep the files of
+ * the last pooling when its inputs are the same: every project's status, head, reason and result
+ * (by SHA-256), the options and schema-strata's version, and the files are still as written.
+ * A re-run that finds nothing changed then reads no project file at all.
+ */
+export function poolStudy(
+  dir: string,
+  outcomes: readonly RepositoryOutcome[],
+  repositories: ReadonlyMap<string, string>,
+  options: StudyOptions,
+): { study: StudyDocument; /** The study's files (written now, or kept). */ written: string[]; reused: boolean } {
+  const key = sha256(
+    canonicalJson({
+      generator: GENERATOR,
+      options,
+      projects: outcomes.map((o) => ({ label: o.label, repository: repositories.get(o.label), failed: o.status === 'failed', reason: o.reason, head: o.head, result: o.result?.sha256 })),
+    }),
+  );
+  const stateFile = join(dir, STATE_DIR, '_pooled.json');
+  try {
+    const last = JSON.parse(readFileSync(stateFile, 'utf8')) as PoolState;
+    const intact = Object.entries(last.files).every(([f, h]) => existsSync(join(dir, f)) && sha256(readFileSync(join(dir, f))) === h);
+    if (last.key === key && intact) return { study: JSON.parse(readFileSync(join(dir, STUDY_FILE), 'utf8')) as StudyDocument, written: Object.keys(last.files), reused: true };
+  } catch {
+    // no state, or not readable: pool again
+  }
+  const { study, projects } = buildStudy(dir, outcomes, repositories, options);
+  const written = writeStudy(dir, study, projects);
+  const files = Object.fromEntries(written.map((f) => [f, sha256(readFileSync(join(dir, f)))]));
+  writeFileAtomic(stateFile, JSON.stringify({ key, files } satisfies PoolState, null, 2) + '\n');
+  return { study, written, reused: false };
 }
 
 /**
