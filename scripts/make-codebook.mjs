@@ -44,6 +44,16 @@ for (const [name, d] of Object.entries(defs)) {
   table(name, d);
   nested(name, d);
 }
+const studyPath = new URL('packages/core/schema/study.schema.json', root);
+if (existsSync(studyPath)) {
+  const study = JSON.parse(readFileSync(studyPath, 'utf8'));
+  out.push('# The study file (study.json)', '', 'Generated from `packages/core/schema/study.schema.json`; statistics and options are those of the interchange file above.', '');
+  table('study (the document)', study);
+  for (const [name, d] of Object.entries(study.$defs ?? {})) {
+    table(name, d);
+    nested(name, d);
+  }
+}
 if (csv) {
   out.push('# The CSV files', '', esc(csv.description ?? ''), '');
   for (const [file, spec] of Object.entries(csv.files ?? {})) {

@@ -60,3 +60,12 @@ export { analysisText } from './analysis/text/analysis-text.js';
 // ---- writers
 export { csvFiles, csvFieldsDocument, TABLE_COLUMNS, CHANGE_COLUMNS, VERSION_COLUMNS, type CsvColumn } from './writers/csv/index.js';
 export { exportFormats, type ExportFormat } from './cli/export-command.js';
+// ---- studies over many repositories
+export { readCorpus, parseCorpus, type Corpus, type CorpusEntry } from './study/corpus.js';
+export { runRepository, type RepositoryJob, type RepositoryOutcome, type StudySettings } from './study/runner.js';
+export { runStudyJobs, type StudyRequest } from './study/run-study.js';
+export { runQueued, startQueueWorker, DEFAULT_QUEUE_NAME, type QueueTarget, type QueueWorkerOptions } from './study/queue.js';
+export { analyseStudy, type StudyAnalysis, type ProjectRow, type StudyProject, type StratifiedTest } from './study/pooling.js';
+export { cochranMantelHaenszel, type Stratum, type StratifiedResult } from './study/stratified.js';
+export { buildStudy, writeStudy, loadStudy, STUDY_FORMAT_NAME, STUDY_FORMAT_VERSION, type StudyDocument, type StudyProjectEntry } from './study/study-document.js';
+export { studyTablesCsv, studyProjectsCsv, studyCsvFields, STUDY_TABLE_COLUMNS, PROJECT_COLUMNS } from './study/study-csv.js';

@@ -46,7 +46,7 @@ export async function analysisFor(doc: InterchangeDocument, opts: AnalysisCliOpt
 }
 
 /** The `extract --analyze` step: rename detection when asked, then the analysis embedded in the document. */
-async function extractStep(doc: InterchangeDocument, opts: ExtractOptions): Promise<void> {
+export async function extractStep(doc: InterchangeDocument, opts: ExtractOptions): Promise<void> {
   const o = opts as ExtractOptions & AnalysisCliOptions & { analyze?: boolean };
   const renames = renameRequest(o);
   if (renames) {

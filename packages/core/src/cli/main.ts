@@ -1,6 +1,8 @@
 import { Command, CommanderError } from 'commander';
 import { UsageError, EXIT } from '../util/errors.js';
 import { VERSION } from '../version.js';
+import { registerStudy } from './study-command.js';
+import { registerWorker } from './worker-command.js';
 import { adaptersForOptions, type CliIO } from './common.js';
 import { registerDemo } from './demo-command.js';
 import { registerExtract } from './extract-command.js';
@@ -21,6 +23,8 @@ Exit codes:
   3   --strict: the run completed but reported diagnostics of severity error
   70  internal error (a bug in schema-strata; please report it)
 `;
+
+commandRegistry.push(registerStudy, registerWorker);
 
 /** The CLI: parse `argv` (without node and script), run the command, return the exit code. */
 export async function main(argv: string[], io: CliIO = { stdout: process.stdout, stderr: process.stderr, env: process.env }): Promise<number> {

@@ -19,7 +19,7 @@ const pct = (x: number | null): string => (x === null ? '-' : `${x.toFixed(1)}%`
 const num = (x: number, d = 1): string => x.toFixed(d);
 const day = (iso: string): string => iso.slice(0, 10);
 
-function contingencyText(title: string, c: ContingencyAnalysis, style: TextStyle): string[] {
+export function contingencyText(title: string, c: ContingencyAnalysis, style: TextStyle): string[] {
   const t = c.table;
   const out = [style.bold(`${title} (${t.total} tables; count, row %, expected count)`)];
   const rows: string[][] = [[t.rowVariable, ...t.columns, 'total']];

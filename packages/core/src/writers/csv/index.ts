@@ -4,6 +4,7 @@ import { CHANGE_COLUMNS, changesCsv } from './changes-csv.js';
 import type { CsvColumn } from './csv-text.js';
 import { TABLE_COLUMNS, tablesCsv } from './tables-csv.js';
 import { VERSION_COLUMNS, versionsCsv } from './versions-csv.js';
+import { studyCsvFields } from '../../study/study-csv.js';
 
 export { TABLE_COLUMNS } from './tables-csv.js';
 export { CHANGE_COLUMNS } from './changes-csv.js';
@@ -20,6 +21,7 @@ export function csvFieldsDocument(): { description: string; files: Record<string
       'tables.csv': { description: 'One row per table that ever existed, with every measure.', columns: cols(TABLE_COLUMNS as readonly CsvColumn<never>[]) },
       'changes.csv': { description: 'One row per change between consecutive versions.', columns: cols(CHANGE_COLUMNS as readonly CsvColumn<never>[]) },
       'versions.csv': { description: 'One row per version: the growth curve.', columns: cols(VERSION_COLUMNS as readonly CsvColumn<never>[]) },
+      ...studyCsvFields(),
     },
   };
 }
