@@ -60,3 +60,9 @@ export { analysisText } from './analysis/text/analysis-text.js';
 // ---- writers
 export { csvFiles, csvFieldsDocument, TABLE_COLUMNS, CHANGE_COLUMNS, VERSION_COLUMNS, type CsvColumn } from './writers/csv/index.js';
 export { exportFormats, type ExportFormat } from './cli/export-command.js';
+export { gexfFile, GEXF_TIMES, type GexfTime } from './writers/gexf/index.js';
+export { graphmlFile } from './writers/graphml/index.js';
+export { dotFile } from './writers/dot/index.js';
+export { graphRecords, graphFieldsDocument, NODE_ATTRIBUTES, EDGE_ATTRIBUTES, type GraphAttribute, type ExportEdge } from './writers/graph/records.js';
+// ---- report
+export { buildReport, renderReport, reportData, layoutGraph, layoutIterations, renderSvg, scopeIds, CLASS_COLOURS, HEAT_SCALE, type ReportOptions, type ReportData, type LifetimeRow, type GraphNode, type GraphLink, type Placed } from './report/index.js';
