@@ -4,6 +4,9 @@
 set -eu
 need=""
 command -v git >/dev/null 2>&1 || need="$need git"
+# Graphviz's dot reads back the DOT export; Debian's chromium runs the report's browser test
+command -v dot >/dev/null 2>&1 || need="$need graphviz"
+[ -x /usr/bin/chromium ] || need="$need chromium"
 if [ -n "$need" ]; then
   if [ "$(id -u)" = "0" ]; then SUDO=""; else SUDO="sudo"; fi
   echo "installing system packages:$need"

@@ -12,7 +12,7 @@ import { demoHooks } from './demo-command.js';
 async function demoReport(dir: string, historyFile: string): Promise<string[]> {
   const { doc, analysis } = await analysisFor(readHistoryFile(historyFile), {});
   const out = join(dir, 'report.html');
-  writeFileAtomic(out, await buildReport(doc, analysis));
+  writeFileAtomic(out, await buildReport(doc, analysis, { title: `the tool-lending co-op demo (${doc.source.adapter.name})` }));
   return [out];
 }
 
@@ -24,13 +24,14 @@ export function registerReport(program: Command, io: CliIO, setCode: (c: number)
     .argument('<history.json>', 'an interchange file written by `schema-strata extract`')
     .option('-o, --output <file>', 'the HTML file to write (- for standard output)', 'report.html')
     .option('--top <n>', 'rows of the most-changed table', '15')
+    .option('--title <text>', 'title of the page (default: the last part of the repository path)')
     .option('--repo <path>', 'the repository, for --initial-until with a tag (default: the one named in the file)');
   addAnalysisOptions(cmd, { renamesDefault: 'as in the file' });
-  cmd.action(async (file: string, opts: AnalysisCliOptions & { output: string; top: string }) => {
+  cmd.action(async (file: string, opts: AnalysisCliOptions & { output: string; top: string; title?: string }) => {
     const top = Number(opts.top);
     if (!Number.isInteger(top) || top < 1) throw new UsageError(`--top ${opts.top}: not a whole number above 0`, EXIT.usage);
     const { doc, analysis } = await analysisFor(readHistoryFile(file), opts);
-    const html = await buildReport(doc, analysis, { topChanged: top });
+    const html = await buildReport(doc, analysis, { topChanged: top, ...(opts.title ? { title: opts.title } : {}) });
     if (opts.output === '-') io.stdout.write(html);
     else {
       writeFileAtomic(opts.output, html);

@@ -12,6 +12,8 @@ import { reportData, type ReportData } from './report-data.js';
 export interface ReportOptions {
   /** Rows of the most-changed table (default 15). */
   topChanged?: number;
+  /** The page's title (default: the last part of the repository path). */
+  title?: string;
 }
 
 /**

@@ -28,7 +28,7 @@ const day = (iso: string): string => iso.slice(0, 10);
 
 function spanText(days: number): string {
   if (days < 60) return `${Math.round(days)} day${Math.round(days) === 1 ? '' : 's'}`;
-  if (days < 730) return `${Math.round(days / 30.44)} months`;
+  if (days < 365) return `${Math.round(days / 30.44)} months`;
   return `${(days / 365.25).toFixed(1)} years`;
 }
 

@@ -1,5 +1,7 @@
 import { Error as VegaError, parse, View } from 'vega';
 import { compile, type TopLevelSpec } from 'vega-lite';
+
+type LoggerInterface = NonNullable<NonNullable<Parameters<typeof compile>[1]>['logger']>;
 import { CHART_CONFIG } from './charts/theme.js';
 
 /**
@@ -9,14 +11,37 @@ import { CHART_CONFIG } from './charts/theme.js';
  * renamed `<prefix>-1`, `<prefix>-2`, ... in order of appearance, so that the output depends on
  * the chart alone and ids stay unique among the charts of one page.
  */
-export async function renderSvg(spec: TopLevelSpec, prefix: string): Promise<string> {
-  const compiled = compile(spec, { config: CHART_CONFIG }).spec;
+export async function renderSvg(spec: TopLevelSpec, prefix: string, warnings: string[] = []): Promise<string> {
+  const logger = collectingLogger(warnings);
+  const compiled = compile(spec, { config: CHART_CONFIG, logger }).spec;
   const view = new View(parse(compiled), { renderer: 'none', logLevel: VegaError });
   try {
     return scopeIds(await view.toSVG(), prefix);
   } finally {
     view.finalize();
   }
+}
+
+/** A logger for Vega-Lite's compiler that keeps its warnings (the tests check there are none) instead of printing them. */
+function collectingLogger(warnings: string[]): LoggerInterface {
+  let level = 0;
+  const self: LoggerInterface = {
+    level(l?: number) {
+      if (l === undefined) return level as never;
+      level = l;
+      return self as never;
+    },
+    error: (...args: readonly unknown[]) => {
+      throw new Error(args.map(String).join(' '));
+    },
+    warn: (...args: readonly unknown[]) => {
+      warnings.push(args.map(String).join(' '));
+      return self;
+    },
+    info: () => self,
+    debug: () => self,
+  } as LoggerInterface;
+  return self;
 }
 
 /** Rename every `id` of an SVG string, with its `url(#...)` and `href="#..."` references. */

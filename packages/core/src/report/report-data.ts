@@ -137,7 +137,7 @@ const categoryOf = (t: TableMeasures): ReportCategory => (t.graph ? t.graph.clas
 const labelOf = (t: TableMeasures): string => (t.namespace ? `${t.namespace}.${t.name}` : t.name);
 
 /** The data of the report, from a document and its analysis. A pure function. */
-export function reportData(doc: InterchangeDocument, analysis: Analysis, options: { topChanged?: number } = {}): ReportData {
+export function reportData(doc: InterchangeDocument, analysis: Analysis, options: { topChanged?: number; title?: string } = {}): ReportData {
   const last = analysis.versions[analysis.versions.length - 1]!;
   const lastVersion = last.index;
   const counted = new Set(analysis.options.count);
@@ -224,7 +224,7 @@ export function reportData(doc: InterchangeDocument, analysis: Analysis, options
   const firstDate = doc.summary.firstDate;
   const lastDate = doc.summary.lastDate;
   return {
-    title: titleOf(doc.source.repository),
+    title: options.title ?? titleOf(doc.source.repository),
     source: {
       repository: doc.source.repository,
       ref: doc.source.ref,

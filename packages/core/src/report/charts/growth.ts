@@ -16,14 +16,14 @@ const MEASURES = [
 export function growthSpec(points: readonly GrowthPoint[]): TopLevelSpec {
   const values = points.flatMap((p) => MEASURES.map((m) => ({ measure: m.label, version: p.version, time: p.time, value: p[m.key] })));
   const panel = (x: 'version' | 'time') => ({
-    width: 330,
+    width: 400,
     height: 92,
     mark: { type: 'line' as const, interpolate: 'step-after' as const, strokeWidth: 1.8, clip: true },
     encoding: {
       x:
         x === 'version'
           ? { field: 'version', type: 'quantitative' as const, title: 'version', axis: { tickMinStep: 1, format: 'd' } }
-          : { field: 'time', type: 'temporal' as const, title: 'committer date (UTC)', scale: { type: 'utc' as const }, axis: { labelOverlap: true } },
+          : { field: 'time', type: 'temporal' as const, title: 'committer date (UTC)', scale: { type: 'utc' as const }, axis: { labelOverlap: true, format: '%Y-%m' } },
       y: { field: 'value', type: 'quantitative' as const, title: null, axis: { tickCount: 4, format: 'd', minExtent: 34 } },
       color: {
         field: 'measure',

@@ -37,7 +37,7 @@ export function lifetimeSpec(rows: readonly LifetimeRow[], lastVersion: number):
   };
   const x = { type: 'quantitative' as const, scale: { domain: [0, lastVersion + 1], nice: false, zero: true } };
   return {
-    width: 640,
+    width: 760,
     height: { step },
     layer: [
       {
