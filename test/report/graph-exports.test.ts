@@ -234,3 +234,13 @@ describe('export command', () => {
     expect(r.stderr).toMatch(/--time/);
   });
 });
+
+test('packages/core/schema/graph-fields.json, the codebook source, is what the writers write (regenerate with node scripts/make-schema.mjs)', async () => {
+  const { createRequire } = await import('node:module');
+  const { graphFieldsDocument, NODE_ATTRIBUTES, EDGE_ATTRIBUTES } = await import('@schema-strata/core');
+  const file = createRequire(import.meta.url).resolve('@schema-strata/core/package.json').replace(/package\.json$/, 'schema/graph-fields.json');
+  expect(JSON.parse(readFileSync(file, 'utf8'))).toEqual(graphFieldsDocument());
+  // every attribute the tests above compare is documented, and nothing else is written
+  expect(NODE_ATTRIBUTES.map((a) => a.name)).toEqual(expect.arrayContaining(Object.keys(expectedNode(nodes.find((t) => t.removal !== null && t.updatesPerYear !== null)!))));
+  expect(EDGE_ATTRIBUTES.map((a) => a.name)).toEqual(['columns', 'referenced_columns', 'enforcement', 'versions', 'self_reference', 'alive']);
+});
