@@ -1,8 +1,8 @@
-import type { AdapterOptionValues, AssembleInput, AssembleResult, SchemaAdapter } from '@schema-strata/core';
+import type { AdapterOptionValues, AssembleInput, AssembleResult, Diagnostic, SchemaAdapter } from '@schema-strata/core';
 import { assembleSchema, datasourceInfo, type JoinKeyRule, type ModelMemo } from './prisma-assemble.js';
 import { PRISMA_OPTIONS } from './prisma-config.js';
 import { locatePrisma, PRISMA_WATCH } from './prisma-locate.js';
-import { modernise, parseWithEngine } from './prisma-parse.js';
+import { modernise, parseWithEngine, unknownPreviewFeatures } from './prisma-parse.js';
 import { scanSchema } from './prisma-scan.js';
 import { ADAPTER_VERSION } from './version.js';
 import { renderPrismaDemo } from './prisma-demo.js';
@@ -31,7 +31,17 @@ export function assemblePrisma(input: AssembleInput<unknown>, options: AdapterOp
       }],
     };
   }
-  const parsed = parseWithEngine(files.map((f) => ({ path: f.path, text: modernise(f.text).text })));
+  let parsed = parseWithEngine(files.map((f) => ({ path: f.path, text: modernise(f.text).text })));
+  const notes: Diagnostic[] = [];
+  const unknown = parsed.ok ? new Set<string>() : unknownPreviewFeatures(parsed.diagnostics);
+  if (unknown.size > 0) {
+    // a preview feature of an older Prisma that the current engine no longer knows: leave it out and parse again
+    parsed = parseWithEngine(files.map((f) => ({ path: f.path, text: modernise(f.text, { dropPreviewFeatures: unknown }).text })));
+    notes.push({
+      severity: 'info', code: 'prisma/preview-feature-dropped',
+      message: `preview feature${unknown.size > 1 ? 's' : ''} ${[...unknown].sort().join(', ')} of an older Prisma left out: the engine of this adapter no longer knows ${unknown.size > 1 ? 'them' : 'it'}`,
+    });
+  }
   if (!parsed.ok) return { failed: true, diagnostics: parsed.diagnostics };
   const { snapshot, diagnostics } = assembleSchema(parsed.datamodel, blocks, {
     provider: ds.provider ?? 'postgresql',
@@ -41,6 +51,7 @@ export function assemblePrisma(input: AssembleInput<unknown>, options: AdapterOp
   if (!ds.provider) {
     diagnostics.push({ severity: 'info', code: 'prisma/no-datasource', message: 'no datasource block: types follow PostgreSQL' });
   }
+  diagnostics.unshift(...notes);
   return { snapshot, diagnostics };
 }
 

@@ -37,6 +37,11 @@ const ACTIONS: Record<string, ReferentialAction> = {
   SetDefault: 'set default',
 };
 
+/** The default onDelete of a required relation: Restrict, or NoAction where the database has no Restrict. */
+function requiredOnDelete(ctx: SchemaContext): ReferentialAction {
+  return ctx.provider === 'sqlserver' && ctx.relationMode === 'foreignKeys' ? 'no action' : 'restrict';
+}
+
 /** The default schema of a provider: a table in it gets no namespace (design: namespace normalised to the default). */
 function defaultNamespace(provider: Provider): string | undefined {
   if (provider === 'postgresql' || provider === 'cockroachdb') return 'public';
@@ -157,7 +162,11 @@ function scalarColumn(
     nullable: f.isList ? true : !f.isRequired,
   };
   if (name !== f.name) col.ormName = f.name;
-  const def = defaultText(f.default, f.kind);
+  // an enum default names a value as the schema does; the database holds its mapped name
+  const e = f.kind === 'enum' ? enums.get(f.type) : undefined;
+  const dbValue = (v: unknown): unknown => (typeof v === 'string' ? e?.values.find((x) => x.name === v)?.dbName ?? v : v);
+  const raw = e ? (Array.isArray(f.default) ? f.default.map(dbValue) : dbValue(f.default)) : f.default;
+  const def = defaultText(raw, f.kind);
   if (def !== undefined) col.default = def;
   const dname = (f.default as { name?: string } | undefined)?.name;
   if (dname === 'autoincrement' || dname === 'sequence') col.generated = 'autoincrement';
@@ -209,7 +218,8 @@ function modelTable(
       const col = scalarColumn(dmmf, ctx, enums, scanned, block?.file);
       columns.push(col);
       fields.push(dmmf.name);
-      if (dmmf.isUnique) uniques.push({ columns: [col.name] });
+      // the engine's data model leaves `isUnique` unset on an `@id @unique` field, whose column still gets a unique index
+      if (dmmf.isUnique || (scanned && hasAttribute(scanned.attributes, '@unique'))) uniques.push({ columns: [col.name] });
       continue;
     }
     if (scanned) {
@@ -251,14 +261,18 @@ function modelTable(
       const tf = target.fieldsByName.get(n);
       return tf ? columnName(tf) : n;
     });
-    const required = f.relationFromFields.every((n) => info.fieldsByName.get(n)?.isRequired !== false);
+    // the engine's "referential arity": required when any referencing field is required, else the
+    // relation field's own arity (prisma-engines, psl: RelationFieldWalker::referential_arity)
+    const required = f.relationFromFields.some((n) => info.fieldsByName.get(n)?.isRequired === true) || f.isRequired;
     const fk: ForeignKey = {
       columns: cols,
       referencedTable: target.id,
       referencedColumns: refCols,
-      // Defaults when the schema states none (Prisma docs, "Referential actions"): onDelete
-      // Restrict for required relations and SetNull for optional ones; onUpdate Cascade.
-      onDelete: f.relationOnDelete ? ACTIONS[f.relationOnDelete] ?? 'no action' : required ? 'restrict' : 'set null',
+      // Defaults when the schema states none (Prisma docs, "Referential actions", "Referential
+      // action defaults"): onDelete Restrict for required relations and SetNull for optional ones;
+      // onUpdate Cascade. Where the database has no Restrict (SQL Server with foreign keys; same
+      // page, support table) the engine uses NoAction instead (psl: default_on_delete_action).
+      onDelete: f.relationOnDelete ? ACTIONS[f.relationOnDelete] ?? 'no action' : required ? requiredOnDelete(ctx) : 'set null',
       onUpdate: f.relationOnUpdate ? ACTIONS[f.relationOnUpdate] ?? 'no action' : 'cascade',
       enforcement: ctx.relationMode === 'prisma' ? 'orm' : 'database',
     };
@@ -276,11 +290,27 @@ function modelTable(
     columns,
     primaryKey,
     foreignKeys: fks,
-    uniques,
+    uniques: distinctUniques(uniques),
   };
   if (info.namespace) t.namespace = info.namespace;
   if (block) t.origin = { file: block.file, line: block.line };
   return { table: t, fields };
+}
+
+/**
+ * One unique constraint per column list: the engine's data model reports a one-field
+ * `@@unique([x])` both as the field's `isUnique` and as a unique index, and the database gets one
+ * index. A name given to either is kept.
+ */
+function distinctUniques(uniques: UniqueConstraint[]): UniqueConstraint[] {
+  const byColumns = new Map<string, UniqueConstraint>();
+  for (const u of uniques) {
+    const key = u.columns.join('\u0000');
+    const seen = byColumns.get(key);
+    if (!seen) byColumns.set(key, u);
+    else if (!seen.name && u.name) byColumns.set(key, { ...seen, name: u.name });
+  }
+  return [...byColumns.values()];
 }
 
 /** A column the engine's data model leaves out (`@ignore`, `Unsupported(...)`), from the source text. */
@@ -323,8 +353,9 @@ function scannedColumn(
  * "Many-to-many relations", conventions for relation tables in implicit m-n relations): named
  * `_` + relation name; column `A` references the model whose name comes first in alphabetical
  * order, `B` the other; both foreign keys cascade. The key follows the engine this adapter ships:
- * a primary key (A, B) on PostgreSQL and CockroachDB, a unique index (A, B) elsewhere; plus an
- * index on B.
+ * a primary key (A, B) on PostgreSQL (Prisma 6 and later; Prisma docs, "Upgrade to Prisma ORM 6":
+ * the change applies to PostgreSQL only), a unique index (A, B) elsewhere, CockroachDB included;
+ * plus an index on B.
  */
 function implicitJoinTables(models: Map<string, ModelInfo>, ctx: SchemaContext): TableInput[] {
   const relations = new Map<string, Array<{ model: ModelInfo; field: DmmfField }>>();
@@ -358,7 +389,7 @@ function implicitJoinTables(models: Map<string, ModelInfo>, ctx: SchemaContext):
       nativeType: nativeTypeText(f.type, false, f.nativeType),
       nullable: false,
     });
-    const pkRule = ctx.joinKey === 'auto' ? (ctx.provider === 'postgresql' || ctx.provider === 'cockroachdb' ? 'primary-key' : 'unique') : ctx.joinKey;
+    const pkRule = ctx.joinKey === 'auto' ? (ctx.provider === 'postgresql' ? 'primary-key' : 'unique') : ctx.joinKey;
     const enforcement = ctx.relationMode === 'prisma' ? 'orm' : 'database';
     const t: TableInput = {
       name: `_${relationName}`,
@@ -417,7 +448,7 @@ function ignoredModels(
       severity: 'info', code: 'prisma/ignored-model', file: b.file, line: b.line,
       message: `model ${b.name} is marked @@ignore: its table is read from the source text (no foreign keys)`,
     });
-    const t: TableInput = { name: mapped ?? b.name, ormName: b.name, kind: 'table', columns, primaryKey, foreignKeys: [], uniques, origin: { file: b.file, line: b.line } };
+    const t: TableInput = { name: mapped ?? b.name, ormName: b.name, kind: 'table', columns, primaryKey, foreignKeys: [], uniques: distinctUniques(uniques), origin: { file: b.file, line: b.line } };
     if (namespace) t.namespace = namespace;
     out.push(t);
   }

@@ -24,15 +24,35 @@ const packageMemo = new Map<string, string | null>();
 /**
  * The `schema` a prisma.config file states, read as a syntax tree (never executed): a string
  * literal, or `path.join(...)` / `path.resolve(...)` / `join(...)` of string literals
- * (`__dirname` and `import.meta.dirname` arguments are the config's own directory).
+ * (`__dirname` and `import.meta.dirname` arguments are the config's own directory), or a
+ * top-level variable holding one of these (or holding the whole config object).
  */
 export function schemaFromConfig(text: string): string | null {
   const t = ts();
   const sf = t.createSourceFile('prisma.config.ts', text, t.ScriptTarget.Latest, true, t.ScriptKind.TS);
   let found: string | null = null;
+  /** The initializer of a top-level `const NAME = ...` (a variable holding the config or the path). */
+  const constant = (name: string): import('ts-morph').ts.Expression | undefined => {
+    for (const st of sf.statements) {
+      if (!t.isVariableStatement(st)) continue;
+      for (const d of st.declarationList.declarations) if (d.name.getText(sf) === name && d.initializer) return d.initializer;
+    }
+    return undefined;
+  };
+  let depth = 0;
   const evalExpr = (e: import('ts-morph').ts.Expression): string | null => {
     while (t.isParenthesizedExpression(e) || t.isAsExpression(e) || t.isSatisfiesExpression(e)) e = e.expression;
     if (t.isStringLiteral(e) || t.isNoSubstitutionTemplateLiteral(e)) return e.text;
+    if (t.isIdentifier(e) && depth < 8) {
+      const init = constant(e.text);
+      if (!init) return null;
+      depth++;
+      try {
+        return evalExpr(init);
+      } finally {
+        depth--;
+      }
+    }
     if (t.isCallExpression(e)) {
       const callee = e.expression.getText(sf);
       if (/^(path\.)?(join|resolve)$/.test(callee) || /^(path\.posix\.)(join|resolve)$/.test(callee)) {
@@ -55,6 +75,10 @@ export function schemaFromConfig(text: string): string | null {
         found = evalExpr(p.initializer);
         return;
       }
+      if (t.isShorthandPropertyAssignment(p) && p.name.text === 'schema') {
+        found = evalExpr(p.name);
+        return;
+      }
     }
   };
   const fromExport = (e: import('ts-morph').ts.Expression): void => {
@@ -63,11 +87,11 @@ export function schemaFromConfig(text: string): string | null {
     else if (t.isCallExpression(e) && e.arguments[0]) fromExport(e.arguments[0]);
     else if (t.isIdentifier(e)) {
       // export default config; -> const config = {...}
-      for (const st of sf.statements) {
-        if (!t.isVariableStatement(st)) continue;
-        for (const d of st.declarationList.declarations) {
-          if (d.name.getText(sf) === e.text && d.initializer) fromExport(d.initializer);
-        }
+      const init = constant(e.text);
+      if (init && depth < 8) {
+        depth++;
+        fromExport(init);
+        depth--;
       }
     }
   };

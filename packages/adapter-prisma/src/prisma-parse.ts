@@ -59,42 +59,111 @@ export function engineVersion(): string {
   return (require('@prisma/prisma-schema-wasm/package.json') as { version: string }).version;
 }
 
-const DATASOURCE_OPEN = /^\s*datasource\s+\w+\s*\{/;
+const BLOCK_OPEN = /^\s*(datasource|generator)\s+\w+\s*\{/;
 const OBSOLETE_PROPERTY = /^(\s*)(url|directUrl|shadowDatabaseUrl)(\s*=)/;
 const OLD_RELATION_MODE = /^(\s*)referentialIntegrity(\s*=)/;
+const PREVIEW_FEATURES = /^(\s*previewFeatures\s*=\s*)\[/;
+
+/** Net depth of brackets and parentheses on a line, outside strings and `//` comments. */
+function depthChange(line: string): number {
+  let depth = 0;
+  let inString = false;
+  for (let i = 0; i < line.length; i++) {
+    const ch = line[i];
+    if (inString) {
+      if (ch === '\\') i++;
+      else if (ch === '"') inString = false;
+      continue;
+    }
+    if (ch === '"') inString = true;
+    else if (ch === '/' && line[i + 1] === '/') break;
+    else if (ch === '(' || ch === '[') depth++;
+    else if (ch === ')' || ch === ']') depth--;
+  }
+  return depth;
+}
+
+/** Lines from `i` to the one that closes what line `i` opens (a value spread over several lines). */
+function valueEnd(lines: string[], i: number): number {
+  let depth = depthChange(lines[i]!);
+  let j = i;
+  while (depth > 0 && j + 1 < lines.length) depth += depthChange(lines[++j]!);
+  return j;
+}
+
+export interface ModerniseOptions {
+  /** Preview features to leave out of `previewFeatures` lists (names the current engine no longer knows). */
+  dropPreviewFeatures?: ReadonlySet<string>;
+}
 
 /**
  * Make a schema written for an older Prisma acceptable to the current engine without changing
  * its meaning or its line numbers: connection-URL properties of the datasource (which the
- * current engine rejects and which say nothing about the schema) become blank, and the old
- * name `referentialIntegrity` becomes `relationMode`.
+ * current engine rejects and which say nothing about the schema) become blank, also when their
+ * value spans several lines; the old name `referentialIntegrity` becomes `relationMode`; and
+ * the preview features named in `dropPreviewFeatures` leave the `previewFeatures` lists
+ * (preview features switch on client or engine features; a feature that the current engine
+ * no longer knows gates no syntax it still parses).
  */
-export function modernise(text: string): { text: string; rewritten: string[] } {
+export function modernise(text: string, options: ModerniseOptions = {}): { text: string; rewritten: string[] } {
   const lines = text.split('\n');
   const rewritten: string[] = [];
-  let inDatasource = false;
+  const drop = options.dropPreviewFeatures;
+  let block: string | null = null;
   for (let i = 0; i < lines.length; i++) {
     const line = lines[i]!;
-    if (!inDatasource) {
-      if (DATASOURCE_OPEN.test(line)) inDatasource = true;
+    if (!block) {
+      block = BLOCK_OPEN.exec(line)?.[1] ?? null;
       continue;
     }
     if (/^\s*\}/.test(line)) {
-      inDatasource = false;
+      block = null;
       continue;
     }
-    const m = OBSOLETE_PROPERTY.exec(line);
+    const m = block === 'datasource' ? OBSOLETE_PROPERTY.exec(line) : null;
     if (m) {
-      lines[i] = ' '.repeat(line.length);
+      const last = valueEnd(lines, i);
+      for (let k = i; k <= last; k++) lines[k] = lines[k]!.endsWith('\r') ? ' '.repeat(lines[k]!.length - 1) + '\r' : ' '.repeat(lines[k]!.length);
       rewritten.push(m[2]!);
+      i = last;
       continue;
     }
-    if (OLD_RELATION_MODE.test(line)) {
+    if (block === 'datasource' && OLD_RELATION_MODE.test(line)) {
       lines[i] = line.replace(OLD_RELATION_MODE, '$1relationMode$2');
       rewritten.push('referentialIntegrity');
+      continue;
+    }
+    const pf = drop && drop.size > 0 ? PREVIEW_FEATURES.exec(line) : null;
+    if (pf) {
+      const last = valueEnd(lines, i);
+      const span = lines.slice(i, last + 1).join('\n');
+      const open = span.indexOf('[', pf[1]!.length - 1);
+      const close = span.lastIndexOf(']');
+      if (close < open) continue;
+      const names = [...span.slice(open + 1, close).matchAll(/"((?:[^"\\]|\\.)*)"/g)].map((x) => x[1]!);
+      const kept = names.filter((n) => !drop!.has(n));
+      if (kept.length === names.length) continue;
+      rewritten.push(...names.filter((n) => drop!.has(n)).map((n) => `previewFeatures:${n}`));
+      // the new list on the first line, the lines it spanned left empty, so that line numbers stay
+      const rest = span.slice(close + 1).split('\n').pop()!;
+      lines[i] = `${span.slice(0, open)}[${kept.map((n) => `"${n}"`).join(', ')}]${rest}`;
+      for (let k = i + 1; k <= last; k++) lines[k] = lines[k]!.endsWith('\r') ? '\r' : '';
+      i = last;
     }
   }
   return { text: lines.join('\n'), rewritten };
+}
+
+const UNKNOWN_PREVIEW_FEATURE = /^The preview feature "([^"]+)" is not known/;
+
+/** Names of the preview features that the engine's diagnostics call unknown. */
+export function unknownPreviewFeatures(diagnostics: readonly Diagnostic[]): Set<string> {
+  const out = new Set<string>();
+  for (const d of diagnostics) {
+    const m = UNKNOWN_PREVIEW_FEATURE.exec(d.message);
+    if (m) out.add(m[1]!);
+  }
+  return out;
 }
 
 // eslint-disable-next-line no-control-regex

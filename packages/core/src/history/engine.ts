@@ -213,7 +213,12 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
 
     if (ambiguous.size > 0) {
       const list = [...ambiguous.values()].map((c) => c.join(' + ')).join('; ');
-      throw new UsageError(`several independent schemas found (${list}); choose one with ${ambiguousHint || '--path'}`, EXIT.failure);
+      // suggest a candidate that still exists at the head, rather than one that later vanished
+      const head = tree.view(repo.head, reader);
+      const present = (p: string): boolean => head.has(p.replace(/\/+$/, '')) || head.under(p.replace(/\/+$/, '')).length > 0;
+      const atHead = [...ambiguous.values()].find((c) => c.every(present));
+      const hint = atHead ? `--path ${atHead.join(' --path ')}` : ambiguousHint || '--path';
+      throw new UsageError(`several independent schemas found (${list}); choose one with ${hint}`, EXIT.failure);
     }
     if (unsupported) {
       throw new UsageError(unsupported, EXIT.failure);
@@ -244,6 +249,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
     const built = await buildVersions(inWindow, {
       adapter, options, reader, cacheDir: req.cacheDir, progress,
     });
+    if (built.versions.length === 0) throw new UsageError(`no version of the ${adapter.name} schema could be built: ${built.runDiagnostics.find((d) => d.severity === 'error')?.message ?? 'every one failed'}`, EXIT.failure);
     return {
       repository: req.repo,
       ref,
