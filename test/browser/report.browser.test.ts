@@ -143,6 +143,17 @@ describe('the demo report in Chromium', () => {
     for (const code of new Set(doc.versions.flatMap((v) => v.diagnostics.map((d) => d.code)))) expect(coverage).toContain(code);
   });
 
+  test('prints: on an A4 page every chart fits the width, and Chromium writes the PDF', async () => {
+    await page.setViewportSize({ width: 794, height: 1123 });
+    await page.emulateMedia({ media: 'print' });
+    const widths = await page.$$eval('figure.chart > svg', (svgs) => svgs.map((s) => s.getBoundingClientRect().right));
+    for (const w of widths) expect(w).toBeLessThanOrEqual(794);
+    const pdf = await page.pdf({ format: 'A4' });
+    expect(pdf.subarray(0, 5).toString()).toBe('%PDF-');
+    await page.emulateMedia({ media: 'screen' });
+    await page.setViewportSize({ width: 1280, height: 900 });
+  });
+
   test('the console shows no error and no request left the page', async () => {
     await page.waitForLoadState('networkidle');
     expect(consoleErrors).toEqual([]);

@@ -5,7 +5,7 @@ import { afterAll, describe, expect, test } from 'vitest';
 import { DirectedGraph, MultiDirectedGraph } from 'graphology';
 import gexf from 'graphology-gexf';
 import graphml from 'graphology-graphml';
-import { DOMParser, type Element } from '@xmldom/xmldom';
+import { DOMParser } from '@xmldom/xmldom';
 import {
   analyzeDocument,
   documentFromSnapshots,
@@ -105,6 +105,14 @@ function checkGraph(g: MultiDirectedGraph, what: string): void {
   }
 }
 
+/** The part of a DOM element the checks use (@xmldom/xmldom's own types need the DOM library). */
+interface Element {
+  tagName: string;
+  childNodes: ArrayLike<unknown>;
+  getAttribute(name: string): string | null;
+  getElementsByTagName(name: string): ArrayLike<Element>;
+}
+
 const elements = (parent: Element, name: string): Element[] => Array.from(parent.getElementsByTagName(name));
 const childElements = (parent: Element, name: string): Element[] => Array.from(parent.childNodes).filter((n): n is Element => (n as Element).tagName === name);
 
@@ -121,7 +129,7 @@ describe('GEXF', () => {
   });
 
   test('a dynamic graph: nodes and edges carry their lifetimes as spells, in versions (closed intervals)', () => {
-    const root = new DOMParser().parseFromString(byVersion, 'text/xml').documentElement!;
+    const root = new DOMParser().parseFromString(byVersion, 'text/xml').documentElement as unknown as Element;
     const graph = elements(root, 'graph')[0]!;
     expect(graph.getAttribute('mode')).toBe('dynamic');
     expect(graph.getAttribute('timeformat')).toBe('integer');
@@ -144,7 +152,7 @@ describe('GEXF', () => {
   });
 
   test('--time date: spells in committer dates (UTC), a removal as an open end', () => {
-    const root = new DOMParser().parseFromString(byDate, 'text/xml').documentElement!;
+    const root = new DOMParser().parseFromString(byDate, 'text/xml').documentElement as unknown as Element;
     expect(elements(root, 'graph')[0]!.getAttribute('timeformat')).toBe('dateTime');
     const utc = (iso: string): string => new Date(iso).toISOString().replace('.000Z', 'Z');
     const dateOf = (v: number): string => utc(analysis.versions[v]!.date);

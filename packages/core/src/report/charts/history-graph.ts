@@ -113,7 +113,7 @@ export function historyGraphSpec(nodes: readonly GraphNode[], links: readonly Gr
             type: 'nominal',
             title: 'topology class',
             scale: { domain: [...TOPOLOGY_CLASSES], range: TOPOLOGY_CLASSES.map((c) => CLASS_COLOURS[c]) },
-            legend: { orient: 'top', direction: 'horizontal' },
+            legend: { orient: 'top', direction: 'horizontal', symbolOpacity: 1 },
           },
           opacity: { field: 'opacity', type: 'quantitative', scale: null, legend: null },
           description: { field: 'description', type: 'nominal' },
