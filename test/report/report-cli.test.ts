@@ -55,3 +55,18 @@ describe('the demo', () => {
     expect(readFileSync(join(a, 'report.html'), 'utf8')).toBe(first);
   });
 });
+
+describe('the one-install package', () => {
+  test("its bin is the CLI, and it finds the adapters it depends on from any working directory", async () => {
+    const { spawnSync } = await import('node:child_process');
+    const { createRequire } = await import('node:module');
+    const pkgFile = createRequire(import.meta.url).resolve('schema-strata/package.json');
+    const pkg = JSON.parse(readFileSync(pkgFile, 'utf8')) as { bin: Record<string, string>; dependencies: Record<string, string> };
+    const bin = join(pkgFile, '..', pkg.bin['schema-strata']!);
+    const adapters = Object.keys(pkg.dependencies).filter((d) => d.startsWith('@schema-strata/adapter-')).map((d) => d.slice('@schema-strata/adapter-'.length));
+    expect(adapters).toContain('prisma');
+    const r = spawnSync(process.execPath, [bin, 'adapters'], { cwd: dir, encoding: 'utf8' });
+    expect(r.status, r.stderr).toBe(0);
+    for (const a of adapters) expect(r.stdout).toMatch(new RegExp(`^${a} \\d`, 'm'));
+  });
+});
