@@ -3,23 +3,23 @@ import type { TopologyClass } from '../analysis/graph/topology-class.js';
 /**
  * The report's own colours and type. Class colours differ in hue and in lightness, so that they
  * stay apart for the common forms of colour blindness and in greyscale print; the heat-map scale
- * is one hue (teal) running from pale to deep, monotonic in lightness.
+ * is one hue (teal) running from pale to deep, its lightness falling at every step.
  */
 export const CLASS_COLOURS: Record<TopologyClass, string> = {
-  isolated: '#9a9a8c',
+  isolated: '#b9b8ab',
   source: '#e08a2e',
   sink: '#2b6fb3',
   intermediate: '#6b2f7f',
 };
 
 /** Tables a filter left out of the measures (they have no topology class). */
-export const LEFT_OUT_COLOUR = '#d3d0c6';
+export const LEFT_OUT_COLOUR = '#e4e1d8';
 
 /** Label of the left-out category in legends. */
 export const LEFT_OUT = 'left out';
 
-/** The sequential scale of the heat maps: pale sand to deep teal. */
-export const HEAT_SCALE = ['#f6f2e6', '#d5e8dd', '#9fcdc4', '#5fa9a6', '#2d7f86', '#0f5363'];
+/** The sequential scale of the heat maps: one teal, from pale to deep. */
+export const HEAT_SCALE = ['#eef6f4', '#c6e3de', '#94c9c1', '#5fa9a3', '#2f8183', '#0e4f52'];
 
 /** Cells whose share is above this (percent of the scale's top) get light text. */
 export const HEAT_LIGHT_TEXT_ABOVE = 0.55;
