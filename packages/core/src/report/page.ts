@@ -118,7 +118,7 @@ function headline(d: ReportData): string {
 ${fig(formatInt(h.versions), 'versions')}
 ${fig(spanText(h.spanDays), `${day(h.firstDate)} to ${day(h.lastDate)}`)}
 ${fig(`${formatInt(h.tablesEver)} / ${formatInt(h.tablesToday)}`, 'tables ever / today')}
-${fig(formatInt(h.removed), 'tables removed')}
+${fig(formatInt(h.removed), h.removed === 1 ? 'table removed' : 'tables removed')}
 ${fig(formatInt(h.countedUpdates), 'counted updates')}
 ${fig(`${formatInt(h.columnsToday)} / ${formatInt(h.foreignKeysToday)}`, 'columns / foreign keys today')}
 </div>`;
