@@ -223,3 +223,14 @@ describe('the page', () => {
     expect(a).toContain('2 diagnostics say that something could not be resolved');
   });
 });
+
+describe('small histories', () => {
+  it('one version with one table, and one version with no table at all, still give a page', async () => {
+    for (const tables of [[table('only', [])], []]) {
+      const d = documentFromSnapshots([{ date: '2024-01-01T00:00:00Z', snapshot: { tables } }]);
+      const html = await buildReport(d, analyzeDocument(d));
+      expect(html).toContain('</html>');
+      expect(html).toContain(`<div class="value">${tables.length} / ${tables.length}</div>`);
+    }
+  });
+});
