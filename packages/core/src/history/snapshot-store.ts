@@ -129,6 +129,8 @@ export class SnapshotStore {
   private readonly tables = new Map<string, StoredTable>();
   /** Stored tables by the adapter's content key (see SnapshotInput). */
   private readonly byContentKey = new Map<string, StoredTable>();
+  /** Stored tables by the adapter's input object (see `fromInput`). */
+  private readonly byInput = new WeakMap<object, { id: string; st: StoredTable; origins: TableOrigins }>();
 
   get size(): number {
     return this.tables.size;
@@ -163,28 +165,36 @@ export class SnapshotStore {
    * A table whose content key (SnapshotInput) was seen before is taken as stored, unnormalised.
    */
   fromInput(input: SnapshotInput): { snapshot: BuiltSnapshot; origins: TableOrigins[]; newTables: StoredTable[] } {
-    const entries: Array<{ id: string; st: StoredTable; o: TableOrigins }> = [];
+    // An adapter that hands back the same table object as in an earlier version (an incremental
+    // assembly), or a table with a content key seen before, gets its stored table without
+    // canonicalising and hashing it again.
+    const entries: Array<{ id: string; st: StoredTable; origins: TableOrigins }> = [];
     const newTables: StoredTable[] = [];
     for (const t of input.tables) {
-      const contentKey = t.contentKey;
-      const known = contentKey !== undefined ? this.byContentKey.get(contentKey) : undefined;
-      if (known) {
-        entries.push({ id: known.table.id, st: known, o: originsOf(t) });
-        continue;
+      let e = this.byInput.get(t);
+      if (!e) {
+        const contentKey = t.contentKey;
+        const known = contentKey !== undefined ? this.byContentKey.get(contentKey) : undefined;
+        if (known) {
+          e = { id: known.table.id, st: known, origins: originsOf(t) };
+        } else {
+          const canon = canonicalOrder({ tables: [t] }).tables[0]!;
+          const { table, origins: o } = stripTable(canon);
+          delete (table as { contentKey?: string }).contentKey;
+          const { st, isNew } = this.intern(table);
+          if (isNew) newTables.push(st);
+          if (contentKey !== undefined) this.byContentKey.set(contentKey, st);
+          e = { id: canon.id, st, origins: o };
+        }
+        this.byInput.set(t, e);
       }
-      const [canon] = canonicalOrder({ tables: [t] }).tables;
-      const { table, origins: o } = stripTable(canon!);
-      delete (table as { contentKey?: string }).contentKey;
-      const { st, isNew } = this.intern(table);
-      if (contentKey !== undefined) this.byContentKey.set(contentKey, st);
-      if (isNew) newTables.push(st);
-      entries.push({ id: st.table.id, st, o });
+      entries.push(e);
     }
     entries.sort((a, b) => (a.id < b.id ? -1 : a.id > b.id ? 1 : 0));
-    const views = canonicalOrder({ tables: [], views: input.views ?? [] }).views.map(({ origin: _o, ...v }) => v);
+    const views = canonicalOrder({ tables: [], ...(input.views ? { views: input.views } : {}) }).views.map(({ origin: _o, ...v }) => v);
     return {
       snapshot: this.assembleSnapshot(entries.map((e) => e.st), views),
-      origins: entries.map((e) => e.o),
+      origins: entries.map((e) => e.origins),
       newTables,
     };
   }

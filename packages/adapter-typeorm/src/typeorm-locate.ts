@@ -1,0 +1,458 @@
+import { posix } from 'node:path';
+import type { Located, LocateRequest, TreeView } from '@schema-strata/core';
+import { readSettings, TYPEORM_DECORATORS } from './typeorm-config.js';
+import { globMatcher, isDeclarationFile, ModuleResolver, nearestTsconfig, SOURCE_FILE, tsconfigView, type TsconfigView } from './typeorm-modules.js';
+import { isOrmconfigPath, isTsconfigPath, parseTypeormFile, type ConfigFact, type TsconfigFact, type TypeormFileFacts, type Value } from './typeorm-parse.js';
+
+/** Paths that can matter to locating or reading TypeORM entities. */
+export const TYPEORM_WATCH = [
+  '**/*.ts', '**/*.tsx', '**/*.mts', '**/*.cts', '**/*.js', '**/*.jsx', '**/*.mjs', '**/*.cjs',
+  '**/tsconfig*.json', '**/ormconfig.*', '**/.env', '**/package.json',
+];
+
+export const SEARCHED =
+  'TypeORM data source options (new DataSource, createConnection, TypeOrmModule.forRoot, ormconfig.*) and their `entities`, else every file with an @Entity, @ChildEntity, @ViewEntity class or an EntitySchema';
+
+const TS_SOURCE = /\.(tsx?|mts|cts)$/;
+const TEST_PATH = /(^|\/)(__tests__|__mocks__|tests?|e2e|spec)\/|\.(spec|test|e2e-spec)\.[cm]?[jt]sx?$/;
+
+/** What the locate step needs of one source file, found by a cheap text scan (no syntax tree). */
+interface Scan {
+  /** Declares an entity (an entity decorator or an EntitySchema, in a file that imports TypeORM). */
+  entity: boolean;
+  /** Imports TypeORM's decorators (a base class, an embedded class, custom decorators): its own imports are followed in full. */
+  typeorm: boolean;
+  /** May hold data source options. */
+  config: boolean;
+  imports: string[];
+}
+
+const DECORATOR_NAMES = new Set(TYPEORM_DECORATORS as readonly string[]);
+const TYPEORM_IMPORT_RE = /import\s+(?:type\s+)?([^;]*?)\s*from\s*['"]typeorm(?:\/[^'"]*)?['"]|(?:const|let|var)\s*\{([^}]*)\}\s*=\s*require\(\s*['"]typeorm['"]\s*\)/g;
+
+/** Whether a file imports any of TypeORM's decorators (a repository or a service importing `Repository` does not). */
+function importsDecorators(text: string): boolean {
+  for (const m of text.matchAll(TYPEORM_IMPORT_RE)) {
+    const clause = m[1] ?? m[2] ?? '';
+    if (/\*\s*as\s/.test(clause) || (m[1] !== undefined && !clause.includes('{'))) return true;
+    const inner = clause.slice(clause.indexOf('{') + 1, clause.lastIndexOf('}') < 0 ? undefined : clause.lastIndexOf('}'));
+    for (const part of inner.split(',')) {
+      const name = part.trim().replace(/^type\s+/, '').split(/\s+as\s+|\s*:\s*/)[0]!.trim();
+      if (DECORATOR_NAMES.has(name)) return true;
+    }
+  }
+  return false;
+}
+
+const IMPORT_RE = /(?:^|[^.\w$])(?:import|export)\s*(?:type\s+)?(?:[\w$*{}\s,]*?\s*from\s*)?['"]([^'"\n]+)['"]/g;
+const REQUIRE_RE = /\b(?:require|import)\s*\(\s*['"]([^'"\n]+)['"]\s*\)/g;
+const TYPEORM_RE = /['"]typeorm(?:\/[^'"]*)?['"]/;
+
+function scanText(text: string, entityDecorators: readonly string[]): Scan {
+  const imports = new Set<string>();
+  for (const m of text.matchAll(IMPORT_RE)) imports.add(m[1]!);
+  for (const m of text.matchAll(REQUIRE_RE)) imports.add(m[1]!);
+  const fromTypeorm = TYPEORM_RE.test(text);
+  const typeorm = fromTypeorm && importsDecorators(text);
+  let entity = fromTypeorm && (/@\s*(?:[\w$]+\.)*(?:Entity|ChildEntity|ViewEntity)\s*\(/.test(text) || /\bEntitySchema\b/.test(text));
+  if (!entity) for (const d of entityDecorators) if (text.includes(`@${d}`)) entity = true;
+  const config = /\bentities\s*:/.test(text) || /\bautoLoadEntities\b/.test(text);
+  return { entity, typeorm, config, imports: [...imports] };
+}
+
+const scanMemo = new Map<string, Map<string, Scan>>();
+const factsMemo = new Map<string, TypeormFileFacts | null>();
+const tsconfigMemo = new Map<string, TsconfigFact | null>();
+
+/** Parsed facts of a configuration file (locate reads these few files in full), by blob id. */
+async function factsOf(tree: TreeView, path: string): Promise<TypeormFileFacts | undefined> {
+  const blob = tree.blob(path);
+  if (!blob) return undefined;
+  let got = factsMemo.get(blob);
+  if (got === undefined) {
+    const text = await tree.read(path);
+    const r = text === undefined ? undefined : parseTypeormFile({ path, blob, text });
+    got = r && r.ok ? r.facts : null;
+    factsMemo.set(blob, got);
+  }
+  return got ?? undefined;
+}
+
+async function tsconfigFactOf(tree: TreeView, path: string): Promise<TsconfigFact | undefined> {
+  const blob = tree.blob(path);
+  if (!blob) return undefined;
+  let got = tsconfigMemo.get(blob);
+  if (got === undefined) {
+    const text = await tree.read(path);
+    const r = text === undefined ? undefined : parseTypeormFile({ path, blob, text });
+    got = r && r.ok && r.facts.tsconfig ? r.facts.tsconfig : null;
+    tsconfigMemo.set(blob, got);
+  }
+  return got ?? undefined;
+}
+
+/** The entity sources a data source's `entities` option names, evaluated statically (paths and class references). */
+export interface EntitySelection {
+  /** Globs relative to the repository root. */
+  globs: string[];
+  /** Class or schema references by local name, resolved through the config file's imports. */
+  refs: string[];
+  /** Something could not be evaluated, or entities are registered elsewhere (autoLoadEntities). */
+  open: boolean;
+}
+
+/** The directory TypeORM resolves a configuration's relative paths against: the nearest package root. */
+export function projectDirOf(file: string, has: (p: string) => boolean): { dir: string; consulted?: string } {
+  let dir = posix.dirname(file);
+  for (;;) {
+    const d = dir === '.' ? '' : dir;
+    const pkg = d ? `${d}/package.json` : 'package.json';
+    if (has(pkg)) return { dir: d, consulted: pkg };
+    if (!d) return { dir: '' };
+    dir = posix.dirname(d);
+  }
+}
+
+/**
+ * Globs that point at compiled output (`dist/**\/*.entity.js`) mapped back to the sources through
+ * the tsconfig's `outDir` / `rootDir`, and `.js` patterns also read as `.ts`.
+ */
+export function sourceGlobs(glob: string, ts: TsconfigView | undefined, hasDir: (d: string) => boolean, projectDir: string): string[] {
+  const out = new Set<string>([glob]);
+  let g = glob;
+  if (ts?.outDir !== undefined && (g === ts.outDir || g.startsWith(ts.outDir + '/'))) {
+    const root = ts.rootDir ?? (hasDir(projectDir ? `${projectDir}/src` : 'src') ? (projectDir ? `${projectDir}/src` : 'src') : projectDir);
+    g = (root ? root : '') + g.slice(ts.outDir.length);
+    g = g.replace(/^\//, '');
+    out.add(g);
+  }
+  if (/\.js\b/.test(g) && !/\.ts\b/.test(g)) out.add(g.replace(/\.js\b/g, '.ts'));
+  if (/\.js\b/.test(glob) && !/\.ts\b/.test(glob)) out.add(glob.replace(/\.js\b/g, '.ts'));
+  return [...out];
+}
+
+/** Globs of one `entities` path, relative to the repository root (`/`-prefixed paths are already so, from __dirname). */
+export function entityGlobs(item: string, projectDir: string, ts: TsconfigView | undefined, hasDir: (d: string) => boolean): string[] {
+  const abs = item.startsWith('/') ? posix.normalize(item).slice(1) : posix.normalize(posix.join(projectDir || '.', item)).replace(/^\.\//, '');
+  if (abs.startsWith('..')) return [];
+  const glob = /[*?{[]/.test(abs) ? abs : abs.replace(/\/$/, '') + (SOURCE_FILE.test(abs) ? '' : '/**/*');
+  return sourceGlobs(glob === '.' ? '**/*' : glob, ts, hasDir, projectDir);
+}
+
+type Light = string | Light[] | { ref: string } | null;
+
+/** Evaluate an `entities` value as far as paths and class names go; null for anything else. */
+function lightEval(v: Value, dir: string, consts: Map<string, Value>, depth = 0): Light {
+  if (depth > 8) return null;
+  switch (v.k) {
+    case 'l':
+      return typeof v.v === 'string' ? v.v : null;
+    case 'a': {
+      const out: Light[] = [];
+      for (const e of v.e) {
+        if (e.k === 's') {
+          const inner = lightEval(e.v, dir, consts, depth + 1);
+          if (!Array.isArray(inner)) return null;
+          out.push(...inner);
+        } else out.push(lightEval(e, dir, consts, depth + 1));
+      }
+      return out;
+    }
+    case 'r': {
+      if (v.n === '__dirname' || v.n === 'import.meta.dirname') return '/' + dir;
+      const c = consts.get(v.n);
+      if (c) return lightEval(c, dir, consts, depth + 1);
+      if (/^[A-Za-z_$][\w$]*$/.test(v.n)) return { ref: v.n };
+      return null;
+    }
+    case 'b': {
+      if (v.o !== '+') return null;
+      const l = lightEval(v.l, dir, consts, depth + 1);
+      const r = lightEval(v.r, dir, consts, depth + 1);
+      return typeof l === 'string' && typeof r === 'string' ? l + r : null;
+    }
+    case 't': {
+      let s = '';
+      for (const q of v.q) {
+        const x = typeof q === 'string' ? q : lightEval(q, dir, consts, depth + 1);
+        if (typeof x !== 'string') return null;
+        s += x;
+      }
+      return s;
+    }
+    case 'c': {
+      const callee = v.c.k === 'r' ? v.c.n : '';
+      if (/^(path\.)?(posix\.)?(join|resolve)$/.test(callee)) {
+        const parts: string[] = [];
+        for (const a of v.a) {
+          const x = lightEval(a, dir, consts, depth + 1);
+          if (typeof x !== 'string') return null;
+          parts.push(x);
+        }
+        if (callee.endsWith('resolve')) {
+          // resolve: the last absolute part starts over
+          let at = 0;
+          parts.forEach((p, i) => {
+            if (p.startsWith('/')) at = i;
+          });
+          return posix.join(...parts.slice(at));
+        }
+        return posix.join(...parts);
+      }
+      return null;
+    }
+    default:
+      return null;
+  }
+}
+
+/** The entity selection of one configuration (locate's static reading; the assembly resolves further). */
+export function selectionOf(cfg: ConfigFact, configPath: string, has: (p: string) => boolean, ts: TsconfigView | undefined, hasDir: (d: string) => boolean, consts: Map<string, Value>): EntitySelection {
+  const sel: EntitySelection = { globs: [], refs: [], open: false };
+  if (cfg.options.k !== 'o') return { ...sel, open: true };
+  const fileDir = posix.dirname(configPath) === '.' ? '' : posix.dirname(configPath);
+  const projectDir = cfg.source === 'code' ? projectDirOf(configPath, has).dir : fileDir;
+  let entities: Value | undefined;
+  for (const [k, v] of cfg.options.p) {
+    if (k === 'entities') entities = v;
+    if (k === 'autoLoadEntities' && !(v.k === 'l' && v.v === false)) sel.open = true;
+    if (k === null) sel.open = true;
+  }
+  if (!entities) return { ...sel, open: true };
+  const got = lightEval(entities, fileDir, consts);
+  const list = Array.isArray(got) ? got : got === null ? null : [got];
+  if (!list) return { ...sel, open: true };
+  for (const item of list) {
+    if (typeof item === 'string') sel.globs.push(...entityGlobs(item, projectDir, ts, hasDir)); else if (item && !Array.isArray(item) && 'ref' in item) sel.refs.push(item.ref);
+    else sel.open = true;
+  }
+  return sel;
+}
+
+const sameScan = (a: Scan, b: Scan): boolean =>
+  a.entity === b.entity && a.typeorm === b.typeorm && !a.config && !b.config && a.imports.length === b.imports.length && a.imports.every((x, i) => x === b.imports[i]);
+
+/** The previous commit's answer: most commits change files in ways that do not change which files are read. */
+let last: { sig: string; paths: readonly string[]; blobs: Map<string, string>; result: Located } | undefined;
+
+/**
+ * Locate the entity files of one commit, the files they follow (base classes, embedded classes,
+ * enums, constants, custom decorators, barrels), the data source configuration and the tsconfig
+ * files that govern them. When the paths are those of the previous commit and every changed file
+ * still declares and imports the same (by the scan of its text), the previous answer stands.
+ */
+export async function locateTypeorm(tree: TreeView, req: LocateRequest): Promise<Located> {
+  const sig = JSON.stringify(req.options) + '\u0000' + (req.paths ? req.paths.join('\u0001') : '\u0002');
+  const all = tree.paths();
+  const paths = Array.isArray(all) ? (all as string[]) : [...all];
+  if (last && last.sig === sig && last.paths.length === paths.length && paths.every((p, i) => p === last!.paths[i])) {
+    const changed: Array<[string, string]> = [];
+    let same = true;
+    for (const p of paths) {
+      const b = tree.blob(p)!;
+      const old = last.blobs.get(p)!;
+      if (b === old) continue;
+      changed.push([p, b]);
+      const scans = scanMemo.get(entityDecoratorSig(req))!;
+      const before = scans?.get(old);
+      if (!before || isOrmconfigPath(p) || isTsconfigPath(p) || !SOURCE_FILE.test(p) || p.endsWith('package.json')) {
+        same = false;
+        break;
+      }
+      const text = await tree.read(p);
+      const now = text === undefined ? undefined : scanText(text, entityDecorators(req));
+      if (now) scans.set(b, now);
+      if (!now || !sameScan(before, now)) {
+        same = false;
+        break;
+      }
+    }
+    if (same) {
+      for (const [p, b] of changed) last.blobs.set(p, b);
+      return last.result;
+    }
+  }
+  const result = await locateFull(tree, req);
+  last = { sig, paths: paths.slice(), blobs: new Map(paths.map((p) => [p, tree.blob(p)!])), result };
+  return result;
+}
+
+function entityDecorators(req: LocateRequest): string[] {
+  const settings = readSettings(req.options);
+  return [...settings.decorators].filter(([, t]) => t === 'Entity' || t === 'ChildEntity' || t === 'ViewEntity').map(([n]) => n);
+}
+
+const entityDecoratorSig = (req: LocateRequest): string => entityDecorators(req).join(',');
+
+async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> {
+  const decorators = entityDecorators(req);
+  const sig = decorators.join(',');
+  let memo = scanMemo.get(sig);
+  if (!memo) scanMemo.set(sig, (memo = new Map()));
+  const scans = memo;
+  const has = (p: string): boolean => tree.has(p);
+  const all = tree.paths() as string[];
+  const allList = Array.isArray(all) ? all : [...all];
+
+  const scanOf = async (p: string): Promise<Scan | undefined> => {
+    const blob = tree.blob(p);
+    if (!blob) return undefined;
+    let s = scans.get(blob);
+    if (!s) {
+      const text = await tree.read(p);
+      s = text === undefined ? { entity: false, typeorm: false, config: false, imports: [] } : scanText(text, decorators);
+      scans.set(blob, s);
+    }
+    return s;
+  };
+
+  // tsconfig views, per tsconfig path, for this commit
+  const tsViews = new Map<string, TsconfigView>();
+  const tsFacts = new Map<string, TsconfigFact | undefined>();
+  const nearest = new Map<string, string | undefined>();
+  const tsconfigFor = (file: string): TsconfigView | undefined => {
+    const dir = posix.dirname(file);
+    let p = nearest.get(dir);
+    if (!nearest.has(dir)) {
+      p = nearestTsconfig(file, has);
+      nearest.set(dir, p);
+    }
+    if (!p) return undefined;
+    let v = tsViews.get(p);
+    if (!v) {
+      v = tsconfigView(p, (q) => tsFacts.get(q), has);
+      tsViews.set(p, v);
+    }
+    return v;
+  };
+  // read every tsconfig of the tree first (they are few and small), so that views are synchronous
+  for (const p of allList) if (isTsconfigPath(p)) tsFacts.set(p, await tsconfigFactOf(tree, p));
+  const resolver = new ModuleResolver(has, tsconfigFor);
+  const dirs = new Set<string>();
+  for (const p of allList) {
+    let d = posix.dirname(p);
+    while (d !== '.' && !dirs.has(d)) {
+      dirs.add(d);
+      d = posix.dirname(d);
+    }
+  }
+  const hasDir = (d: string): boolean => d === '' || dirs.has(d);
+
+  const consulted = new Set<string>();
+  const configFiles = new Set<string>();
+  let roots: string[] = [];
+  const sourceOf = (p: string): boolean => SOURCE_FILE.test(p) && !isDeclarationFile(p);
+
+  if (req.paths) {
+    for (const p of req.paths) {
+      if (!sourceOf(p)) continue;
+      if ((await scanOf(p))?.entity) roots.push(p);
+    }
+  } else {
+    // data source configurations
+    const selections: EntitySelection[] = [];
+    const candidates: string[] = [];
+    for (const p of allList) {
+      if (isOrmconfigPath(p)) candidates.push(p);
+      else if (sourceOf(p) && (await scanOf(p))?.config) candidates.push(p);
+    }
+    for (const p of candidates) {
+      const facts = await factsOf(tree, p);
+      if (!facts || facts.configs.length === 0) continue;
+      configFiles.add(p);
+      const consts = new Map<string, Value>(facts.consts.map((c) => [c.name, c.value]));
+      const pd = projectDirOf(p, has);
+      if (pd.consulted) consulted.add(pd.consulted);
+      for (const cfg of facts.configs) {
+        const sel = selectionOf(cfg, p, has, tsconfigFor(p), hasDir, consts);
+        // class references: the files their imports name
+        for (const ref of sel.refs) {
+          const imp = facts.imports.find((i) => i.names.some(([local]) => local === ref) || i.def === ref);
+          if (imp) {
+            const res = resolver.resolve(p, imp.from);
+            if (res.kind === 'file') sel.globs.push(res.path);
+            else sel.open = true;
+          } else if (facts.classes.some((c) => c.name === ref) || facts.schemas.some((s) => s.name === ref)) sel.globs.push(p);
+          else sel.open = true;
+        }
+        selections.push(sel);
+      }
+    }
+    const open = selections.length === 0 || selections.some((s) => s.open);
+    if (!open) {
+      const match = globMatcher(selections.flatMap((s) => s.globs));
+      for (const p of allList) {
+        if (!sourceOf(p) || !match(p)) continue;
+        if ((await scanOf(p))?.entity) roots.push(p);
+      }
+    }
+    if (open || roots.length === 0) {
+      roots = [];
+      for (const p of allList) {
+        if (!TS_SOURCE.test(p) || isDeclarationFile(p) || TEST_PATH.test(p)) continue;
+        if ((await scanOf(p))?.entity) roots.push(p);
+      }
+      if (roots.length === 0) {
+        for (const p of allList) {
+          if (!sourceOf(p) || TS_SOURCE.test(p) || TEST_PATH.test(p)) continue;
+          if ((await scanOf(p))?.entity) roots.push(p);
+        }
+      }
+    }
+  }
+  if (roots.length === 0) return { files: [], searched: SEARCHED };
+
+  // follow imports: in full from files that use TypeORM, two steps from other files
+  const included = new Set<string>(roots);
+  const queue: Array<{ path: string; depth: number }> = roots.map((path) => ({ path, depth: 0 }));
+  // a configuration file's own imports are read only for the names its options use (a naming strategy class, a list of entities)
+  for (const c of configFiles) {
+    if (!sourceOf(c)) continue;
+    const facts = await factsOf(tree, c);
+    if (!facts) continue;
+    const used = new Set<string>();
+    const collect = (v: unknown): void => {
+      if (Array.isArray(v)) {
+        for (const x of v) collect(x);
+        return;
+      }
+      if (!v || typeof v !== 'object') return;
+      const val = v as Value;
+      if (val.k === 'r') used.add(val.n.split('.')[0]!);
+      for (const x of Object.values(val)) if (x && typeof x === 'object') collect(x);
+    };
+    for (const cfg of facts.configs) collect(cfg.options);
+    for (const k of facts.consts) if (used.has(k.name)) collect(k.value);
+    for (const imp of facts.imports) {
+      const names = [...imp.names.map(([local]) => local), ...(imp.def ? [imp.def] : []), ...(imp.ns ? [imp.ns] : [])];
+      if (!names.some((n) => used.has(n))) continue;
+      const r = resolver.resolve(c, imp.from);
+      if (r.kind === 'file' && !included.has(r.path)) {
+        included.add(r.path);
+        queue.push({ path: r.path, depth: 2 });
+      }
+    }
+  }
+  while (queue.length > 0) {
+    const { path, depth } = queue.shift()!;
+    const scan = await scanOf(path);
+    if (!scan) continue;
+    const aware = scan.typeorm || scan.entity;
+    const next = aware ? 1 : depth + 1;
+    if (!aware && depth >= 2) continue;
+    // entity files and files using TypeORM's decorators are followed in full; two steps from others
+    for (const spec of scan.imports) {
+      const r = resolver.resolve(path, spec);
+      if (r.kind !== 'file' || included.has(r.path)) continue;
+      included.add(r.path);
+      queue.push({ path: r.path, depth: next });
+    }
+  }
+  for (const c of configFiles) included.add(c);
+  for (const p of [...included]) {
+    if (!sourceOf(p)) continue;
+    const v = tsconfigFor(p);
+    if (v) for (const f of v.files) included.add(f);
+  }
+  return { files: [...included].sort(), consulted: [...consulted].sort(), searched: SEARCHED };
+}

@@ -1,0 +1,169 @@
+import { describe, expect, it } from 'vitest';
+import { compareWithOracle, oracle } from './oracle.js';
+import { runAdapter } from './harness.js';
+
+/**
+ * Finding the entities as the data source says (read statically), the naming strategy and the
+ * options it sets; checked against TypeORM's metadata for the options TypeORM would get.
+ */
+
+const ENTITY = (cls: string, table?: string, extra = ''): string => `import { Column, Entity, PrimaryGeneratedColumn } from 'typeorm';
+
+@Entity(${table ? `'${table}'` : ''})
+export class ${cls} {
+  @PrimaryGeneratedColumn()
+  id: number;
+
+  @Column()
+  displayName: string;
+${extra}}
+`;
+
+const TSCONFIG = '{ "compilerOptions": { "experimentalDecorators": true, "emitDecoratorMetadata": true, "outDir": "dist", "rootDir": "src" } }\n';
+
+const tableNames = (r: Awaited<ReturnType<typeof runAdapter>>): string[] => r.snapshot!.tables.map((t) => t.name).sort();
+
+describe('entities selected by the data source', () => {
+  it('takes the entities a glob names, mapping compiled output back to the sources', async () => {
+    const files = {
+      'package.json': '{ "name": "coop" }',
+      'tsconfig.json': TSCONFIG,
+      'src/data-source.ts': "import { DataSource } from 'typeorm';\nexport default new DataSource({ type: 'postgres', entities: ['dist/entity/**/*.js'], migrations: ['dist/migrations/*.js'] });\n",
+      'src/entity/member.ts': ENTITY('Member', 'members'),
+      'src/entity/tool.ts': ENTITY('Tool'),
+      'src/scratch/old-member.ts': ENTITY('OldMember', 'old_members'),
+    };
+    const r = await runAdapter(files);
+    expect(tableNames(r)).toEqual(['members', 'tool']);
+    expect(r.located.files).toEqual(['src/data-source.ts', 'src/entity/member.ts', 'src/entity/tool.ts', 'tsconfig.json']);
+    expect(r.located.consulted).toEqual(['package.json']);
+  });
+
+  it('reads __dirname globs, classes listed by name, and leaves test entities out', async () => {
+    const files = {
+      'package.json': '{}',
+      'src/config/db.ts': "import { DataSource } from 'typeorm';\nimport { Loan } from '../lending/loan';\nexport const db = new DataSource({ type: 'postgres', entities: [__dirname + '/../catalog/*.entity.{ts,js}', Loan], synchronize: false });\n",
+      'src/catalog/tool.entity.ts': ENTITY('Tool'),
+      'src/catalog/tag.entity.ts': ENTITY('Tag'),
+      'src/catalog/helper.ts': ENTITY('NotListed'),
+      'src/lending/loan.ts': ENTITY('Loan'),
+      'src/lending/fee.ts': ENTITY('Fee'),
+    };
+    const r = await runAdapter(files);
+    expect(tableNames(r)).toEqual(['loan', 'tag', 'tool']);
+  });
+
+  it('takes the files --path names (and what they follow) instead of a data source', async () => {
+    const files = {
+      'src/data-source.ts': "import { DataSource } from 'typeorm';\nexport const ds = new DataSource({ type: 'postgres', entities: ['src/**/*.ts'] });\n",
+      'src/base.ts': "import { PrimaryGeneratedColumn } from 'typeorm';\nexport abstract class Row {\n  @PrimaryGeneratedColumn()\n  id: number;\n}\n",
+      'src/a/member.ts': "import { Column, Entity } from 'typeorm';\nimport { Row } from '../base';\n@Entity()\nexport class Member extends Row {\n  @Column()\n  name: string;\n}\n",
+      'src/b/tool.ts': ENTITY('Tool'),
+    };
+    const r = await runAdapter(files, {}, ['src/a/member.ts']);
+    expect(r.located.files).toEqual(['src/a/member.ts', 'src/base.ts']);
+    expect(r.snapshot!.tables.map((t) => `${t.name}(${t.columns.map((c) => c.name).join(',')})`)).toEqual(['member(id,name)']);
+  });
+
+  it('reads ormconfig.json and the TYPEORM_ENTITIES of ormconfig.env', async () => {
+    const json = await runAdapter({
+      'ormconfig.json': '{ "type": "postgres", "entities": ["src/model/*.ts"] }',
+      'src/model/member.ts': ENTITY('Member'),
+      'src/other/member.ts': ENTITY('Other'),
+    });
+    expect(tableNames(json)).toEqual(['member']);
+    const env = await runAdapter({
+      'ormconfig.env': 'TYPEORM_CONNECTION = postgres\nTYPEORM_ENTITIES = src/model/*.ts\n',
+      'src/model/member.ts': ENTITY('Member'),
+      'src/other/member.ts': ENTITY('Other'),
+    });
+    expect(tableNames(env)).toEqual(['member']);
+  });
+
+  it('takes every entity when the data source loads them elsewhere (autoLoadEntities), but not test entities', async () => {
+    const r = await runAdapter({
+      'src/app.module.ts': "import { TypeOrmModule } from '@nestjs/typeorm';\nexport const imports = [TypeOrmModule.forRoot({ type: 'postgres', autoLoadEntities: true })];\n",
+      'src/member/member.entity.ts': ENTITY('Member'),
+      'src/tool/tool.entity.ts': ENTITY('Tool'),
+      'test/fixtures/probe.entity.ts': ENTITY('Probe'),
+      'src/member/member.entity.spec.ts': ENTITY('SpecOnly'),
+    });
+    expect(tableNames(r)).toEqual(['member', 'tool']);
+  });
+
+  it('reads the sources, not compiled output committed beside them, and follows only what a configuration names', async () => {
+    const compiled = "\"use strict\";\nconst typeorm_1 = require(\"typeorm\");\nlet Tool = class Tool {};\nTool = __decorate([(0, typeorm_1.Entity)()], Tool);\nexports.Tool = Tool;\n";
+    const r = await runAdapter({
+      'src/tool.entity.ts': ENTITY('Tool'),
+      'dist/tool.entity.js': compiled,
+      'src/container.ts': "import { createConnection, Repository } from 'typeorm';\nimport { Tool } from './tool.entity';\nimport { Mailer } from './mailer';\nimport { ToolService } from './tool.service';\nexport const boot = () => createConnection({ type: 'mysql', entities: [Tool], synchronize: false });\nexport const services = [Mailer, ToolService];\n",
+      'src/mailer.ts': 'export class Mailer {}\n',
+      'src/tool.service.ts': "import { Repository } from 'typeorm';\nimport { Tool } from './tool.entity';\nexport class ToolService { constructor(private readonly tools: Repository<Tool>) {} }\n",
+    });
+    expect(r.located.files).toEqual(['src/container.ts', 'src/tool.entity.ts']);
+    expect(r.snapshot!.tables[0]!.columns.find((c) => c.name === 'displayName')!.type).toEqual({ kind: 'string', length: 255 });
+  });
+
+  it('reports a MongoDB data source as unsupported, and leaves MongoDB entities out of a relational one', async () => {
+    const mongo = await runAdapter({
+      'src/data-source.ts': "import { DataSource } from 'typeorm';\nexport const ds = new DataSource({ type: 'mongodb', entities: ['src/**/*.ts'] });\n",
+      'src/member.ts': ENTITY('Member'),
+    });
+    expect(mongo.failed).toBe(true);
+    expect(mongo.diagnostics.map((d) => d.code)).toContain('typeorm/mongodb-unsupported');
+    const mixed = await runAdapter({
+      'src/member.ts': ENTITY('Member'),
+      'src/log.ts': "import { Entity, ObjectIdColumn, ObjectId } from 'typeorm';\n@Entity()\nexport class Log {\n  @ObjectIdColumn()\n  id: ObjectId;\n}\n",
+    });
+    expect(tableNames(mixed)).toEqual(['member']);
+    expect(mixed.diagnostics.map((d) => d.code)).toContain('typeorm/mongodb-entity');
+  });
+});
+
+describe('naming strategy and options of the data source', () => {
+  const RELATED = {
+    'src/member.ts': "import { Column, Entity, OneToMany, PrimaryGeneratedColumn } from 'typeorm';\nimport { ToolLoan } from './loan';\n@Entity()\nexport class CoopMember {\n  @PrimaryGeneratedColumn()\n  memberId: number;\n\n  @Column()\n  fullName: string;\n\n  @OneToMany(() => ToolLoan, (l) => l.borrowedBy)\n  loans: ToolLoan[];\n}\n",
+    'src/loan.ts': "import { Column, Entity, JoinTable, ManyToMany, ManyToOne, PrimaryGeneratedColumn } from 'typeorm';\nimport { CoopMember } from './member';\n@Entity()\nexport class ToolLoan {\n  @PrimaryGeneratedColumn()\n  id: number;\n\n  @Column({ type: 'timestamp' })\n  dueAt: Date;\n\n  @ManyToOne(() => CoopMember, (m) => m.loans)\n  borrowedBy: CoopMember;\n\n  @ManyToMany(() => CoopMember)\n  @JoinTable()\n  witnessedBy: CoopMember[];\n}\n",
+  };
+
+  it("detects the community snake-case strategy and agrees with TypeORM running it", async () => {
+    const files = {
+      ...RELATED,
+      'src/data-source.ts': "import { DataSource } from 'typeorm';\nimport { SnakeNamingStrategy } from 'typeorm-naming-strategies';\nexport const ds = new DataSource({ type: 'postgres', entities: ['src/*.ts'], namingStrategy: new SnakeNamingStrategy() });\n",
+    };
+    const r = await runAdapter(files);
+    const theirs = await oracle(RELATED, { naming: 'snake' });
+    expect(compareWithOracle(r.snapshot!, theirs)).toEqual([]);
+    expect(tableNames(r)).toEqual(['coop_member', 'tool_loan', 'tool_loan_witnessed_by_coop_member']);
+    expect(r.snapshot!.tables.find((t) => t.name === 'tool_loan')!.columns.map((c) => c.name)).toContain('borrowed_by_member_id');
+  });
+
+  it("detects a project's own snake-case class, and takes TypeORM's default for an unknown strategy (with a diagnostic)", async () => {
+    const own = await runAdapter({
+      ...RELATED,
+      'src/naming.ts': "import { DefaultNamingStrategy, NamingStrategyInterface } from 'typeorm';\nimport { snakeCase } from 'typeorm/util/StringUtils';\nexport class CoopNaming extends DefaultNamingStrategy implements NamingStrategyInterface {\n  tableName(className: string, customName?: string): string {\n    return customName ? customName : snakeCase(className);\n  }\n  columnName(propertyName: string, customName: string | undefined, prefixes: string[]): string {\n    return snakeCase(prefixes.concat('').join('_')) + (customName ? customName : snakeCase(propertyName));\n  }\n}\n",
+      'src/data-source.ts': "import { DataSource } from 'typeorm';\nimport { CoopNaming } from './naming';\nexport const ds = new DataSource({ type: 'postgres', entities: ['src/*.ts'], namingStrategy: new CoopNaming() });\n",
+    });
+    expect(own.snapshot!.tables.find((t) => t.name === 'coop_member')!.columns.map((c) => c.name)).toContain('full_name');
+    const odd = await runAdapter({
+      ...RELATED,
+      'src/naming.ts': "import { DefaultNamingStrategy } from 'typeorm';\nexport class UpperNaming extends DefaultNamingStrategy {\n  tableName(className: string): string {\n    return className.toUpperCase();\n  }\n}\n",
+      'src/data-source.ts': "import { DataSource } from 'typeorm';\nimport { UpperNaming } from './naming';\nexport const ds = new DataSource({ type: 'postgres', entities: ['src/*.ts'], namingStrategy: new UpperNaming() });\n",
+    });
+    expect(odd.diagnostics.map((d) => d.code)).toContain('typeorm/unknown-naming-strategy');
+    expect(tableNames(odd)).toContain('coop_member');
+    const forced = await runAdapter(RELATED, { 'typeorm-naming': 'snake' });
+    expect(forced.snapshot!.tables.find((t) => t.name === 'tool_loan')!.columns.map((c) => c.name)).toContain('due_at');
+  });
+
+  it('applies entityPrefix and the default schema of the data source, as TypeORM does', async () => {
+    const files = {
+      ...RELATED,
+      'src/data-source.ts': "import { DataSource } from 'typeorm';\nexport const ds = new DataSource({ type: 'postgres', entities: ['src/*.ts'], entityPrefix: 'coop_', schema: 'lending' });\n",
+    };
+    const r = await runAdapter(files);
+    const theirs = await oracle(RELATED, { entityPrefix: 'coop_', schema: 'lending' });
+    expect(compareWithOracle(r.snapshot!, theirs)).toEqual([]);
+    expect(r.snapshot!.tables.map((t) => `${t.namespace}.${t.name}`).sort()).toEqual(['lending.coop_coop_member', 'lending.coop_tool_loan', 'lending.coop_tool_loan_witnessed_by_coop_member']);
+  });
+});

@@ -1,0 +1,68 @@
+/** Running the TypeORM adapter's own steps (locate, parse, assemble) on files held in memory. */
+import { createHash } from 'node:crypto';
+import { readdirSync, readFileSync, statSync } from 'node:fs';
+import { join, relative } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import type { AdapterOptionValues, Diagnostic, Located, SnapshotInput, TreeView } from '@schema-strata/core';
+import { typeormAdapter, type TypeormFileFacts } from '@schema-strata/adapter-typeorm';
+
+export const FIXTURES = fileURLToPath(new URL('../fixtures/typeorm/', import.meta.url));
+
+/** Every file under a fixture folder, by path relative to it. */
+export function readFixture(name: string): Record<string, string> {
+  const root = join(FIXTURES, name);
+  const out: Record<string, string> = {};
+  const walk = (dir: string): void => {
+    for (const e of readdirSync(dir).sort()) {
+      const p = join(dir, e);
+      if (statSync(p).isDirectory()) walk(p);
+      else out[relative(root, p).split('\\').join('/')] = readFileSync(p, 'utf8');
+    }
+  };
+  walk(root);
+  return out;
+}
+
+const blobOf = (text: string): string => createHash('sha1').update(text).digest('hex');
+
+/** A tree view over files in memory, as core gives adapters one commit's tree. */
+export function memoryTree(files: Record<string, string>): TreeView {
+  const paths = Object.keys(files).sort();
+  return {
+    commit: 'memory',
+    paths: () => paths,
+    has: (p) => p in files,
+    blob: (p) => (p in files ? blobOf(files[p]!) : undefined),
+    read: async (p) => files[p],
+    under: (dir) => paths.filter((p) => p.startsWith(dir.replace(/\/+$/, '') + '/')),
+  };
+}
+
+export interface AdapterRun {
+  located: Located;
+  snapshot?: SnapshotInput;
+  failed?: boolean;
+  diagnostics: Diagnostic[];
+}
+
+/** The adapter's snapshot of one set of files: locate, then parse each located file, then assemble. */
+export async function runAdapter(files: Record<string, string>, options: AdapterOptionValues = {}, paths?: string[]): Promise<AdapterRun> {
+  const tree = memoryTree(files);
+  const located = await typeormAdapter.locate(tree, { options, ...(paths ? { paths } : {}) });
+  const diagnostics: Diagnostic[] = [...(located.diagnostics ?? [])];
+  const inputs: Array<{ path: string; blob: string; facts?: TypeormFileFacts }> = [];
+  const missing: string[] = [];
+  for (const path of located.files) {
+    const text = files[path]!;
+    const r = await typeormAdapter.parseFile!({ path, blob: blobOf(text), text }, options);
+    diagnostics.push(...(r.diagnostics ?? []));
+    if (r.ok) {
+      // facts are plain JSON: what the disk cache stores must come back the same
+      inputs.push({ path, blob: blobOf(text), facts: JSON.parse(JSON.stringify(r.facts)) as TypeormFileFacts });
+    } else missing.push(path);
+  }
+  const result = await typeormAdapter.assemble({ files: inputs, missing }, options);
+  diagnostics.push(...result.diagnostics);
+  if ('failed' in result) return { located, failed: true, diagnostics };
+  return { located, snapshot: result.snapshot, diagnostics };
+}
