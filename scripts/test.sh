@@ -4,5 +4,5 @@
 set -eu
 cd "$(dirname "$0")/.."
 sh scripts/ensure-system-deps.sh
-tsc -b packages/core packages/adapter-prisma packages/adapter-typeorm
+tsc -b packages/core packages/adapter-prisma packages/adapter-typeorm packages/adapter-knex
 vitest run "$@"

@@ -97,6 +97,8 @@ interface CachedUnit {
   key: string;
   tables?: string[];
   origins?: PackedOrigins;
+  /** In memory only (never written): the origins as the adapter gave them. */
+  rawOrigins?: TableOrigins[];
   views?: ViewRef[];
   failed?: boolean;
   d: Diagnostic[];
@@ -475,12 +477,9 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
             });
           }
         }
-        key = hashText(
-          canonicalJson({
-            files: inputs.map((x) => [x.path, x.blob, x.stale ? lastGood.get(x.path)?.blob ?? '' : '']),
-            missing,
-          }),
-        );
+        let k = '';
+        for (const x of inputs) k += `${x.path}\u0000${x.blob}\u0000${x.stale ? lastGood.get(x.path)?.blob ?? '' : ''}\u0001`;
+        key = hashText(`${k}\u0002${missing.join('\u0000')}`);
       }
 
       // ---- assemble (cached by the exact input set)
@@ -507,14 +506,19 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
           unit = {
             k: 's', key,
             tables: made.snapshot.tables.map((t) => t.hash),
-            origins: packOrigins(made.origins),
+            // packed only for the disk cache; this run reads them unpacked
+            ...(pack ? { origins: packOrigins(made.origins) } : {}),
+            rawOrigins: made.origins,
             views: made.snapshot.views,
             d: [...readDiagnostics, ...result.diagnostics],
             ...(result.counters && Object.keys(result.counters).length > 0 ? { c: result.counters } : {}),
           };
         }
         unitCache.set(key, unit);
-        pack?.add(unit);
+        if (pack) {
+          const { rawOrigins: _raw, ...stored } = unit;
+          pack.add(stored);
+        }
       }
       diagnostics.push(...unit.d);
       counters = unit.c ?? {};
@@ -536,10 +540,13 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
         const existing = snapshots.get(snapshot.hash);
         if (existing) snapshot = existing;
         unit.tables!.forEach((h, i) => {
-          if (!tableOrigins.has(h)) tableOrigins.set(h, unit!.origins ? unpackOrigins(unit!.origins, i) : {});
+          if (!tableOrigins.has(h)) {
+            tableOrigins.set(h, unit!.rawOrigins ? unit!.rawOrigins[i] ?? {} : unit!.origins ? unpackOrigins(unit!.origins, i) : {});
+          }
         });
         // every table of this unit now has its first origins; the unit's copy is not needed again
         delete unit.origins;
+        delete unit.rawOrigins;
         if (stale) status = 'partial';
         else if (lastPresent && lastPresent.meaningHash === snapshot.meaningHash) status = 'no change';
       }
@@ -590,10 +597,11 @@ function readDiagnostic(path: string, got: { kind: string; size?: number }): Dia
 }
 
 function dedupeDiagnostics(ds: Diagnostic[]): Diagnostic[] {
+  if (ds.length < 2) return ds;
   const seen = new Set<string>();
   const out: Diagnostic[] = [];
   for (const d of ds) {
-    const k = canonicalJson(d);
+    const k = `${d.severity}\u0000${d.code}\u0000${d.file ?? ''}\u0000${d.line ?? ''}\u0000${d.column ?? ''}\u0000${d.message}`;
     if (seen.has(k)) continue;
     seen.add(k);
     out.push(d);

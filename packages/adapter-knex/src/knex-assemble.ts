@@ -1,0 +1,417 @@
+import { posix } from 'node:path';
+import type {
+  AdapterOptionValues,
+  AdapterSession,
+  AssembleInput,
+  AssembleResult,
+  Diagnostic,
+  SnapshotInput,
+} from '@schema-strata/core';
+import { canonicalJson, contentHash } from '@schema-strata/core';
+import type { KnexFacts } from './knex-facts.js';
+import { knexOptions, type KnexOptions } from './knex-config.js';
+import { isKnexfile, knexfileSettings, migrationsIn, resolveImport } from './knex-locate.js';
+import { EMPTY_STATE, Replay, type FileContext, type ReplayCounters, type SchemaState, type TableState, type ViewState } from './knex-replay.js';
+import { dialectOf, type Dialect } from './knex-types.js';
+
+/** One migration (or init file) of a version, in replay order. */
+export interface PlanEntry {
+  path: string;
+  role: 'init' | 'migration';
+  /** Absent when the file never parsed (its effects are skipped). */
+  file?: FileContext;
+  /** Identity of the entry: its path, its facts and the facts of the project files it imports. */
+  key: string;
+}
+
+/** What a version's replay needs: its entries in order, the dialect, and every file by path. */
+export interface VersionPlan {
+  dialect: Dialect;
+  entries: PlanEntry[];
+  files: FileLookup;
+  diagnostics: Diagnostic[];
+}
+
+const factsKeys = new WeakMap<object, string>();
+/** A content key of a file's facts (memoised per facts object: core hands the same object for the same blob). */
+function factsKey(facts: KnexFacts): string {
+  let k = factsKeys.get(facts);
+  if (!k) {
+    k = contentHash(canonicalJson(facts));
+    factsKeys.set(facts, k);
+  }
+  return k;
+}
+
+const NO_IMPORTS: ReadonlyMap<string, string> = new Map();
+const baseNames = new Map<string, string>();
+function baseName(p: string): string {
+  let b = baseNames.get(p);
+  if (b === undefined) {
+    b = posix.basename(p);
+    baseNames.set(p, b);
+  }
+  return b;
+}
+const entryMemo = new WeakMap<FileContext, PlanEntry>();
+const contexts = new WeakMap<KnexFacts, Map<string, FileContext>>();
+
+/** The replay's view of a file; reused across versions while its facts are the same and it imports nothing. */
+function fileContext(path: string, facts: KnexFacts, paths: { has(p: string): boolean }): FileContext {
+  if (facts.imports.length > 0) {
+    const imports = new Map<string, string>();
+    for (const spec of facts.imports) {
+      const target = resolveImport(path, spec, (p) => paths.has(p));
+      if (target) imports.set(spec, target);
+    }
+    return { path, facts, imports };
+  }
+  let byPath = contexts.get(facts);
+  if (!byPath) {
+    byPath = new Map();
+    contexts.set(facts, byPath);
+  }
+  let ctx = byPath.get(path);
+  if (!ctx) {
+    ctx = { path, facts, imports: NO_IMPORTS };
+    byPath.set(path, ctx);
+  }
+  return ctx;
+}
+
+/**
+ * The files of a version by path: a binary search over the input (sorted by path), each file's
+ * context made on first use, so that a version costs no map of all its files.
+ */
+export class FileLookup {
+  private readonly made = new Map<number, FileContext>();
+  constructor(
+    private readonly input: AssembleInput<KnexFacts>['files'],
+    private readonly paths: { has(p: string): boolean },
+  ) {}
+
+  get(path: string): FileContext | undefined {
+    const files = this.input;
+    let lo = 0;
+    let hi = files.length - 1;
+    while (lo <= hi) {
+      const mid = (lo + hi) >> 1;
+      const p = files[mid]!.path;
+      if (p === path) return this.at(mid);
+      if (p < path) lo = mid + 1;
+      else hi = mid - 1;
+    }
+    return undefined;
+  }
+
+  private at(i: number): FileContext | undefined {
+    let ctx = this.made.get(i);
+    if (!ctx) {
+      const f = this.input[i]!;
+      if (!f.facts) return undefined;
+      ctx = fileContext(f.path, f.facts, this.paths);
+      this.made.set(i, ctx);
+    }
+    return ctx;
+  }
+
+  *values(): IterableIterator<FileContext> {
+    for (let i = 0; i < this.input.length; i++) {
+      const ctx = this.at(i);
+      if (ctx) yield ctx;
+    }
+  }
+}
+
+/** Compare two names with digit runs as numbers (`2_x` before `10_x`), the rest as text; equal ones by their text. */
+export function naturalCompare(a: string, b: string): number {
+  const digit = (c: number): boolean => c >= 48 && c <= 57;
+  let i = 0;
+  let j = 0;
+  while (i < a.length && j < b.length) {
+    const ca = a.charCodeAt(i);
+    const cb = b.charCodeAt(j);
+    if (digit(ca) && digit(cb)) {
+      let ei = i;
+      let ej = j;
+      while (ei < a.length && digit(a.charCodeAt(ei))) ei++;
+      while (ej < b.length && digit(b.charCodeAt(ej))) ej++;
+      const d = BigInt(a.slice(i, ei)) - BigInt(b.slice(j, ej));
+      if (d !== 0n) return d < 0n ? -1 : 1;
+      i = ei;
+      j = ej;
+      continue;
+    }
+    if (ca !== cb) return ca - cb;
+    i++;
+    j++;
+  }
+  if (a.length - i !== b.length - j) return a.length - i - (b.length - j);
+  return a < b ? -1 : a > b ? 1 : 0;
+}
+
+const codeUnitCompare = (a: string, b: string): number => (a < b ? -1 : a > b ? 1 : 0);
+
+/**
+ * Plan the replay of one version: find the knexfile among the files (its migration settings and
+ * client), the init files, the migrations in Knex's order (lib/migrations/migrate/sources/
+ * fs-migrations.js: by file name across directories, a stable sort; each directory in turn with
+ * `sortDirsSeparately`), and the project files they import.
+ */
+export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOptions): VersionPlan {
+  const diagnostics: Diagnostic[] = [];
+  const all = input.files.map((f) => f.path);
+  let pathSet: Set<string> | null = null;
+  const paths = { has: (p: string): boolean => (pathSet ??= new Set([...all, ...input.missing])).has(p) };
+  const files = new FileLookup(input.files, paths);
+  let blobs: Map<string, string> | null = null;
+  const blobOf = (p: string): string => (blobs ??= new Map(input.files.map((f) => [f.path, f.blob]))).get(p) ?? '';
+
+  const init = options.init.map((p) => posix.normalize(p).replace(/^\.\//, '')).filter((p) => paths.has(p));
+  const initSet = new Set(init);
+  const knexfile = input.files.find((f) => isKnexfile(f.path) && !initSet.has(f.path));
+  const settings = knexfile ? knexfileSettings(knexfile.facts?.config, knexfile.path, options.environment) : null;
+  for (const n of settings?.notes ?? []) diagnostics.push({ severity: 'info', code: 'knex/knexfile', file: knexfile!.path, message: n });
+
+  let dialect: Dialect = 'postgresql';
+  if (options.client) dialect = options.client;
+  else if (settings?.client) {
+    const d = dialectOf(settings.client);
+    if (d) dialect = d;
+    else diagnostics.push({ severity: 'info', code: 'knex/client-unknown', file: knexfile!.path, message: `client ${settings.client} is not one schema-strata maps; types follow PostgreSQL (set --knex-client)` });
+  }
+
+  // the migrations and the directory each comes from
+  const found: Array<{ path: string; dir: number; name: string }> = [];
+  const several = (settings?.directories.length ?? 0) > 1 || !settings;
+  const taken = new Set<string>([...initSet, ...(knexfile ? [knexfile.path] : [])]);
+  const take = (p: string, dir: number): void => {
+    if (several || taken.size > 0) {
+      if (taken.has(p)) return;
+      if (several) taken.add(p);
+    }
+    found.push({ path: p, dir, name: baseName(p) });
+  };
+  if (settings) {
+    const everything = input.missing.length > 0 ? [...all, ...input.missing] : all;
+    settings.directories.forEach((dir, di) => {
+      const got = migrationsIn(everything, dir, settings.loadExtensions);
+      for (const p of got.files) take(p, di);
+      if (got.fromSources) {
+        diagnostics.push({ severity: 'info', code: 'knex/load-extensions', file: knexfile!.path, message: `${dir}: loadExtensions names only compiled files, which are not in the repository; the .ts sources are replayed` });
+      }
+    });
+  } else {
+    // no knexfile: every file except the init files and the helpers the others import
+    const imported = new Set<string>();
+    for (const ctx of files.values()) for (const target of ctx.imports.values()) if (target !== ctx.path) imported.add(target);
+    const dirs = [...new Set(all.concat(input.missing).map((p) => posix.dirname(p)))].sort();
+    for (const p of [...all, ...input.missing].sort()) {
+      if (isKnexfile(p)) continue;
+      if (imported.has(p) && !files.get(p)?.facts.up) continue;
+      take(p, dirs.indexOf(posix.dirname(p)));
+    }
+  }
+
+  const cmp = options.order === 'natural' ? naturalCompare : codeUnitCompare;
+  const order = (a: (typeof found)[number], b: (typeof found)[number]): number => {
+    if (settings?.sortDirsSeparately && a.dir !== b.dir) return a.dir - b.dir;
+    return cmp(a.name, b.name) || a.dir - b.dir || codeUnitCompare(a.path, b.path);
+  };
+  // the files come sorted by path: within one directory that is already Knex's order by name
+  let sorted = true;
+  for (let i = 1; i < found.length && sorted; i++) if (order(found[i - 1]!, found[i]!) > 0) sorted = false;
+  if (!sorted) found.sort(order);
+  const byName = new Map<string, string[]>();
+  // one directory cannot hold two files of one name
+  if (several) for (const f of found) {
+    const list = byName.get(f.name);
+    if (list) list.push(f.path);
+    else byName.set(f.name, [f.path]);
+  }
+  for (const [name, list] of byName) {
+    if (list.length < 2) continue;
+    diagnostics.push({
+      severity: 'warning', code: 'knex/duplicate-name', file: list[1]!,
+      message: `two migrations are named ${name} (${list.join(', ')}): Knex records migrations by file name, so a database that ran one never runs the other; both are replayed here, in this order`,
+    });
+  }
+
+  const depKey = (path: string): string => {
+    // the facts of the project files this file imports, transitively
+    const seen = new Set<string>([path]);
+    const queue = [path];
+    const keys: string[] = [];
+    for (let head = 0; head < queue.length; head++) {
+      const p = queue[head]!;
+      const ctx = files.get(p);
+      if (!ctx) continue;
+      for (const target of ctx.imports.values()) {
+        if (seen.has(target)) continue;
+        seen.add(target);
+        queue.push(target);
+        const t = files.get(target);
+        keys.push(`${target}:${t ? factsKey(t.facts) : `missing:${blobOf(target)}`}`);
+      }
+    }
+    return keys.sort().join(',');
+  };
+  const entry = (path: string, role: PlanEntry['role']): PlanEntry => {
+    const file = files.get(path);
+    if (file && file.facts.imports.length === 0) {
+      // a file that imports nothing is the same entry in every version (its context is reused)
+      let e = entryMemo.get(file);
+      if (!e || e.role !== role) {
+        e = { path, role, file, key: `${role}|${path}|${factsKey(file.facts)}|` };
+        entryMemo.set(file, e);
+      }
+      return e;
+    }
+    const own = file ? factsKey(file.facts) : `missing:${blobOf(path)}`;
+    return { path, role, ...(file ? { file } : {}), key: `${role}|${path}|${own}|${file ? depKey(path) : ''}` };
+  };
+  const entries = [...init.map((p) => entry(p, 'init')), ...found.map((f) => entry(f.path, 'migration'))];
+  return { dialect, entries, files, diagnostics };
+}
+
+interface Step {
+  key: string;
+  path: string;
+  state: SchemaState;
+  diagnostics: Diagnostic[];
+  counters: ReplayCounters;
+  missing: boolean;
+  role: PlanEntry['role'];
+  /** Diagnostics and counts of this step and every step before it. */
+  upTo: { diagnostics: Diagnostic[]; counters: VersionCounters };
+}
+
+interface VersionCounters {
+  migrations: number;
+  skippedMigrations: number;
+  rawStatements: number;
+  rawSchemaStatements: number;
+  unresolved: number;
+}
+
+const NO_COUNTS: VersionCounters = { migrations: 0, skippedMigrations: 0, rawStatements: 0, rawSchemaStatements: 0, unresolved: 0 };
+
+const tableOutput = new WeakMap<TableState, SnapshotInput['tables'][number]>();
+const viewOutput = new WeakMap<ViewState, NonNullable<SnapshotInput['views']>[number]>();
+
+/** The neutral table of a replayed table (memoised: an untouched table is the same object in the next version). */
+function toTable(t: TableState): SnapshotInput['tables'][number] {
+  let out = tableOutput.get(t);
+  if (out) return out;
+  out = {
+    id: t.id,
+    name: t.name,
+    ...(t.namespace ? { namespace: t.namespace } : {}),
+    kind: 'table',
+    columns: t.columns.map((c) => ({
+      name: c.name,
+      ...(c.id !== c.name ? { id: c.id } : {}),
+      type: c.type,
+      nativeType: c.native,
+      nullable: c.nullable,
+      ...(c.default !== undefined ? { default: c.default } : {}),
+      ...(c.generated ? { generated: c.generated } : {}),
+      origin: c.origin,
+    })),
+    primaryKey: [...t.primaryKey],
+    foreignKeys: t.foreignKeys.map((f) => ({
+      ...(f.name ? { name: f.name } : {}),
+      columns: [...f.columns],
+      referencedTable: f.refTable,
+      referencedColumns: [...f.refColumns],
+      ...(f.onDelete ? { onDelete: f.onDelete } : {}),
+      ...(f.onUpdate ? { onUpdate: f.onUpdate } : {}),
+      enforcement: 'database' as const,
+    })),
+    uniques: t.uniques.map((u) => ({ ...(u.name ? { name: u.name } : {}), columns: [...u.columns] })),
+    origin: t.origin,
+  };
+  tableOutput.set(t, out);
+  return out;
+}
+
+function toView(v: ViewState): NonNullable<SnapshotInput['views']>[number] {
+  let out = viewOutput.get(v);
+  if (!out) {
+    out = { id: v.id, name: v.name, ...(v.namespace ? { namespace: v.namespace } : {}), origin: v.origin };
+    viewOutput.set(v, out);
+  }
+  return out;
+}
+
+/**
+ * The fold of one run: the schema after each migration of the last version assembled is kept, so
+ * that a version which only appends migrations replays just those, and a version whose old
+ * migration was edited replays from that migration on (the longest common prefix of entries).
+ */
+export class KnexSession implements AdapterSession<KnexFacts> {
+  private steps: Step[] = [];
+  private dialect: Dialect | null = null;
+  /** Migrations replayed by this session (for tests and benchmarks). */
+  replayed = 0;
+
+  constructor(private readonly options: KnexOptions) {}
+
+  assemble(input: AssembleInput<KnexFacts>): AssembleResult {
+    const plan = planVersion(input, this.options);
+    if (plan.dialect !== this.dialect) {
+      this.steps = [];
+      this.dialect = plan.dialect;
+    }
+    let i = 0;
+    while (i < this.steps.length && i < plan.entries.length && this.steps[i]!.key === plan.entries[i]!.key) i++;
+    this.steps.length = i;
+    let state = i > 0 ? this.steps[i - 1]!.state : EMPTY_STATE;
+    for (let j = i; j < plan.entries.length; j++) {
+      const e = plan.entries[j]!;
+      const replay = new Replay(state, plan.dialect, plan.files);
+      if (e.file) {
+        replay.runFile(e.file, e.role);
+        this.replayed++;
+      }
+      state = replay.state();
+      const before = j > 0 ? this.steps[j - 1]!.upTo : { diagnostics: [], counters: NO_COUNTS };
+      const c = replay.counters;
+      const upTo = {
+        diagnostics: replay.diagnostics.length > 0 ? [...before.diagnostics, ...replay.diagnostics] : before.diagnostics,
+        counters: {
+          migrations: before.counters.migrations + (e.role === 'migration' ? 1 : 0),
+          skippedMigrations: before.counters.skippedMigrations + (e.file ? 0 : 1),
+          rawStatements: before.counters.rawStatements + c.rawStatements,
+          rawSchemaStatements: before.counters.rawSchemaStatements + c.rawSchemaStatements,
+          unresolved: before.counters.unresolved + c.unresolved,
+        },
+      };
+      this.steps.push({ key: e.key, path: e.path, state, diagnostics: replay.diagnostics, counters: c, missing: !e.file, role: e.role, upTo });
+    }
+    return this.result(state, plan);
+  }
+
+  /** The schema after each entry of the last version assembled: the init files, then the migrations in order. */
+  trace(): Array<{ path: string; role: PlanEntry['role']; skipped: boolean; snapshot: SnapshotInput }> {
+    return this.steps.map((s) => ({
+      path: s.path,
+      role: s.role,
+      skipped: s.missing,
+      snapshot: { tables: s.state.tables.valueList().map(toTable), views: [...s.state.views.values()].map(toView) },
+    }));
+  }
+
+  private result(state: SchemaState, plan: VersionPlan): AssembleResult {
+    const last = this.steps[this.steps.length - 1]?.upTo ?? { diagnostics: [], counters: NO_COUNTS };
+    const diagnostics = [...plan.diagnostics, ...last.diagnostics];
+    const tables = state.tables.valueList().map(toTable);
+    const views = [...state.views.values()].map(toView);
+    return { snapshot: { tables, views }, diagnostics, counters: { ...last.counters } };
+  }
+}
+
+/** Assemble one version without a session (a fresh fold from the first migration). */
+export function assembleKnex(input: AssembleInput<KnexFacts>, options: AdapterOptionValues): AssembleResult {
+  return new KnexSession(knexOptions(options)).assemble(input);
+}

@@ -1,0 +1,53 @@
+import type { AdapterOption, AdapterOptionValues } from '@schema-strata/core';
+import { DIALECTS, type Dialect } from './knex-types.js';
+
+/** Options of the Knex adapter (shown by `schema-strata extract --help`; also settable in schema-strata.config.json `options`). */
+export const KNEX_OPTIONS: readonly AdapterOption[] = Object.freeze([
+  {
+    flag: 'knex-init',
+    description:
+      'a base-schema setup file (builder calls outside the migrations: its up(), its default-exported function, or its top-level statements), replayed before the migrations; repeat for several, in order',
+    type: 'string[]',
+  },
+  {
+    flag: 'knex-order',
+    description:
+      'order of the migrations: name (as Knex sorts them: by file name across all migration directories) or natural (digit runs compared as numbers, for projects whose own migration source sorts that way)',
+    type: 'string',
+    choices: ['name', 'natural'],
+    default: 'name',
+  },
+  {
+    flag: 'knex-environment',
+    description: 'knexfile environment whose migration settings and client are read (default: production, else development, else the first)',
+    type: 'string',
+  },
+  {
+    flag: 'knex-client',
+    description: `database the column types follow (${DIALECTS.join(', ')}); default: the knexfile's client, else postgresql`,
+    type: 'string',
+    choices: ['auto', ...DIALECTS],
+    default: 'auto',
+  },
+]);
+
+export interface KnexOptions {
+  init: string[];
+  order: 'name' | 'natural';
+  environment?: string;
+  client?: Dialect;
+}
+
+/** The adapter's options from the values core passes (CLI flags or the configuration file). */
+export function knexOptions(values: AdapterOptionValues): KnexOptions {
+  const init = values['knex-init'];
+  const order = values['knex-order'];
+  const env = values['knex-environment'];
+  const client = values['knex-client'];
+  return {
+    init: Array.isArray(init) ? init : typeof init === 'string' && init ? [init] : [],
+    order: order === 'natural' ? 'natural' : 'name',
+    ...(typeof env === 'string' && env ? { environment: env } : {}),
+    ...(typeof client === 'string' && (DIALECTS as readonly string[]).includes(client) ? { client: client as Dialect } : {}),
+  };
+}

@@ -1,0 +1,383 @@
+import { posix } from 'node:path';
+import type { AdapterOptionValues, Diagnostic, Located, LocateRequest, TreeView } from '@schema-strata/core';
+import type { Val } from './knex-facts.js';
+import { isArr, isObj, member, parseKnexSource } from './knex-parse.js';
+import { knexOptions } from './knex-config.js';
+
+const SOURCE_EXTENSIONS = ['.js', '.cjs', '.mjs', '.ts', '.cts', '.mts'];
+const KNEXFILE_EXTENSIONS = ['.js', '.ts', '.cjs', '.mjs', '.cts', '.mts'];
+const KNEXFILE = /^knexfile\.(js|ts|cjs|mjs|cts|mts)$/;
+
+/**
+ * Paths that can matter to locating or replaying Knex migrations: every JavaScript and
+ * TypeScript file (a knexfile can name any directory, a migration can import constants from
+ * anywhere in the project). One glob for the six extensions (.js .cjs .mjs .ts .cts .mts):
+ * git's log pass matches every watched glob against every changed path, so fewer is faster.
+ */
+export const KNEX_WATCH = ['**/*.*[jt]s'];
+
+/** Knex's default `migrations.loadExtensions` (lib/migrations/common/MigrationsLoader.js). */
+export const DEFAULT_LOAD_EXTENSIONS = ['.co', '.coffee', '.eg', '.iced', '.js', '.cjs', '.litcoffee', '.ls', '.ts'];
+
+export const SEARCHED =
+  'knexfile.{js,ts,cjs,mjs,cts,mts} (its migrations.directory, per environment) at the root or in one package of a monorepo, ' +
+  'else a directory named migrations whose files are Knex migrations';
+
+export function isKnexfile(path: string): boolean {
+  return path.includes('knexfile.') && KNEXFILE.test(posix.basename(path));
+}
+
+export function isSourceFile(path: string): boolean {
+  return SOURCE_EXTENSIONS.includes(posix.extname(path)) && !/\.d\.[cm]?ts$/.test(path);
+}
+
+/** The migration settings a knexfile states, for one environment, with directories relative to the repository root. */
+export interface KnexfileSettings {
+  /** The environment read, when the knexfile has several. */
+  environment?: string;
+  client?: string;
+  directories: string[];
+  loadExtensions: string[];
+  sortDirsSeparately: boolean;
+  tableName: string;
+  schemaName?: string;
+  /** Parts of the knexfile that could not be read statically. */
+  notes: string[];
+}
+
+const UNKNOWN = Symbol('unknown');
+type Plain = string | number | boolean | null | undefined | Plain[] | { [k: string]: Plain } | typeof UNKNOWN;
+
+/** Evaluate a knexfile value statically: `__dirname` is `/` + the knexfile's directory (an absolute path inside the repository). */
+function evalConfig(v: Val, dir: string, depth = 0): Plain {
+  if (depth > 20) return UNKNOWN;
+  if (v === null || typeof v !== 'object') return v;
+  if ('arr' in v) return v.arr.map((x) => evalConfig(x, dir, depth + 1));
+  if ('obj' in v) {
+    const out: { [k: string]: Plain } = {};
+    for (const [k, x] of v.obj) {
+      if (k === '...') {
+        const s = evalConfig(x, dir, depth + 1);
+        if (s && typeof s === 'object' && !Array.isArray(s)) Object.assign(out, s);
+      } else out[k] = evalConfig(x, dir, depth + 1);
+    }
+    return out;
+  }
+  if ('dir' in v) return '/' + dir;
+  if ('join' in v) {
+    const parts = v.join.map((x) => evalConfig(x, dir, depth + 1));
+    if (!parts.every((p) => typeof p === 'string')) return UNKNOWN;
+    // path.resolve(x) is relative to the working directory, which Knex's CLI sets to the knexfile's
+    return posix.join(...(parts as string[]));
+  }
+  if ('cat' in v) {
+    const parts = v.cat.map((x) => evalConfig(x, dir, depth + 1));
+    if (!parts.every((p) => typeof p === 'string' || typeof p === 'number')) return UNKNOWN;
+    return parts.join('');
+  }
+  if ('or' in v) {
+    const a = evalConfig(v.or[0], dir, depth + 1);
+    return a === UNKNOWN || !a ? evalConfig(v.or[1], dir, depth + 1) : a;
+  }
+  if ('when' in v) {
+    // `process.env.X ? a : b`: not known; the first branch Knex users write is the usual one
+    const a = evalConfig(v.then, dir, depth + 1);
+    return a === UNKNOWN ? evalConfig(v.else, dir, depth + 1) : a;
+  }
+  if ('at' in v) {
+    const base = evalConfig(v.at, dir, depth + 1);
+    const key = evalConfig(v.key, dir, depth + 1);
+    if (base && typeof base === 'object' && !Array.isArray(base) && typeof key === 'string') return base[key];
+    return UNKNOWN;
+  }
+  if ('undef' in v) return undefined;
+  return UNKNOWN;
+}
+
+const CONFIG_KEYS = ['client', 'dialect', 'connection', 'migrations', 'useNullAsDefault', 'pool', 'searchPath'];
+
+/** The environments of a knexfile's default export, or null when it is one flat configuration. */
+export function knexfileEnvironments(config: Val): string[] | null {
+  if (!isObj(config)) return null;
+  if (config.obj.some(([k]) => CONFIG_KEYS.includes(k))) return null;
+  return config.obj.filter(([k, v]) => k !== '...' && isObj(v)).map(([k]) => k);
+}
+
+/**
+ * The migration settings of a knexfile (its default export, as facts), for the environment
+ * asked for, else `production`, else `development`, else the first one (Knex's CLI reads
+ * `development` by default; production is where the schema that matters lives).
+ */
+export function knexfileSettings(config: Val | undefined, knexfilePath: string, environment?: string): KnexfileSettings {
+  const dir = posix.dirname(knexfilePath) === '.' ? '' : posix.dirname(knexfilePath);
+  const notes: string[] = [];
+  const settings: KnexfileSettings = {
+    directories: [],
+    loadExtensions: DEFAULT_LOAD_EXTENSIONS,
+    sortDirsSeparately: false,
+    tableName: 'knex_migrations',
+    notes,
+  };
+  let chosen: Val | undefined = config;
+  const envs = config === undefined ? null : knexfileEnvironments(config);
+  if (envs) {
+    const name = environment && envs.includes(environment)
+      ? environment
+      : (['production', 'development'].find((e) => envs.includes(e)) ?? envs[0]);
+    if (environment && !envs.includes(environment)) notes.push(`the knexfile has no environment "${environment}"; ${name ?? 'none'} is read`);
+    if (name) {
+      settings.environment = name;
+      chosen = member(config!, name);
+    }
+  }
+  const plain = chosen === undefined ? undefined : evalConfig(chosen, dir);
+  const obj = plain && typeof plain === 'object' && !Array.isArray(plain) ? plain : {};
+  const client = obj['client'] ?? obj['dialect'];
+  if (typeof client === 'string') settings.client = client;
+  else if (client === UNKNOWN) notes.push('the client is not known statically');
+  const mig = obj['migrations'];
+  const m = mig && typeof mig === 'object' && !Array.isArray(mig) ? mig : {};
+  if (mig === UNKNOWN) notes.push('migrations settings are not known statically; ./migrations is assumed');
+  const d = m['directory'];
+  const list = d === undefined ? ['./migrations'] : Array.isArray(d) ? d : [d];
+  for (const x of list) {
+    if (typeof x !== 'string') {
+      notes.push('a migrations.directory is not known statically; it is left out');
+      continue;
+    }
+    const p = x.startsWith('/') ? posix.normalize(x.slice(1)) : posix.normalize(posix.join(dir, x));
+    const norm = p === '.' ? '' : p.replace(/\/+$/, '');
+    if (norm.startsWith('..')) notes.push(`migrations.directory ${x} is outside the repository; left out`);
+    else if (!settings.directories.includes(norm)) settings.directories.push(norm);
+  }
+  if (settings.directories.length === 0 && list.length > 0 && notes.length === 0) settings.directories.push(posix.join(dir, 'migrations'));
+  const le = m['loadExtensions'];
+  if (Array.isArray(le) && le.every((x) => typeof x === 'string')) settings.loadExtensions = le as string[];
+  if (m['sortDirsSeparately'] === true) settings.sortDirsSeparately = true;
+  if (typeof m['tableName'] === 'string') settings.tableName = m['tableName'];
+  if (typeof m['schemaName'] === 'string') settings.schemaName = m['schemaName'];
+  return settings;
+}
+
+/**
+ * The migration files of a directory as Knex's file-system source lists them: the files directly
+ * in it (not in subdirectories) whose extension is in loadExtensions. A TypeScript project whose
+ * knexfile loads only the compiled `.js` files, and whose `.js` files are not committed, gets
+ * its `.ts` sources instead (with a note).
+ */
+export function migrationsIn(paths: readonly string[], dir: string, loadExtensions: readonly string[]): { files: string[]; fromSources: boolean } {
+  const prefix = dir === '' ? '' : dir + '/';
+  const files: string[] = [];
+  const sources: string[] = [];
+  for (const p of paths) {
+    if (!p.startsWith(prefix) || p.indexOf('/', prefix.length) >= 0) continue;
+    if (p.endsWith('ts') && /\.d\.[cm]?ts$/.test(p)) continue;
+    let loaded = false;
+    for (const e of loadExtensions) {
+      if (p.endsWith(e) && p.length - e.length > prefix.length) {
+        loaded = true;
+        break;
+      }
+    }
+    if (loaded) files.push(p);
+    else if (p.endsWith('.ts') || p.endsWith('.mts') || p.endsWith('.cts')) sources.push(p);
+  }
+  if (files.length > 0 || !loadExtensions.includes('.js')) return { files, fromSources: false };
+  return { files: sources, fromSources: sources.length > 0 };
+}
+
+/**
+ * Resolve a relative import specifier of `from` against a set of paths, as Node and TypeScript
+ * would: the exact file, the `.ts` source of a `.js` specifier, the specifier with a source
+ * extension, or its index file.
+ */
+export function resolveImport(from: string, spec: string, has: (p: string) => boolean): string | undefined {
+  const base = posix.normalize(posix.join(posix.dirname(from), spec));
+  if (base.startsWith('..')) return undefined;
+  const ext = posix.extname(base);
+  const candidates: string[] = [];
+  if (SOURCE_EXTENSIONS.includes(ext)) {
+    candidates.push(base);
+    const stem = base.slice(0, -ext.length);
+    if (ext === '.js') candidates.push(stem + '.ts', stem + '.tsx');
+    if (ext === '.mjs') candidates.push(stem + '.mts');
+    if (ext === '.cjs') candidates.push(stem + '.cts');
+  }
+  for (const e of SOURCE_EXTENSIONS) candidates.push(base + e);
+  for (const e of SOURCE_EXTENSIONS) candidates.push(`${base}/index${e}`);
+  return candidates.find(has);
+}
+
+/** Relative import specifiers in a text: a quick scan, not a parse (`import`, `export ... from`, `require`, `import()`). */
+export function scanImports(text: string): string[] {
+  const out: string[] = [];
+  const re = /(?:\bfrom\s*|\brequire\s*\(\s*|\bimport\s*\(\s*|\bimport\s+)(['"])(\.{1,2}(?:\/[^'"\n]*)?)\1/g;
+  for (let m = re.exec(text); m; m = re.exec(text)) if (!out.includes(m[2]!)) out.push(m[2]!);
+  return out;
+}
+
+// memos by blob id: the same text always gives the same answer
+const importMemo = new Map<string, string[]>();
+const configMemo = new Map<string, Val | null>();
+const migrationMemo = new Map<string, boolean>();
+
+async function importsOf(tree: TreeView, path: string): Promise<string[]> {
+  const blob = tree.blob(path);
+  if (!blob) return [];
+  let specs = importMemo.get(blob);
+  if (!specs) {
+    const text = await tree.read(path);
+    specs = text === undefined ? [] : scanImports(text);
+    importMemo.set(blob, specs);
+  }
+  return specs;
+}
+
+async function knexfileConfig(tree: TreeView, path: string): Promise<Val | null> {
+  const blob = tree.blob(path);
+  if (!blob) return null;
+  let c = configMemo.get(blob);
+  if (c === undefined) {
+    const text = await tree.read(path);
+    const parsed = text === undefined ? null : parseKnexSource(text);
+    c = parsed && parsed.ok ? (parsed.facts.config ?? null) : null;
+    configMemo.set(blob, c);
+  }
+  return c;
+}
+
+/**
+ * Whether a file reads like a Knex migration (a quick scan, memoised by blob): it defines `up`
+ * and uses a Knex builder. Migrations of other tools (a query runner, a query interface) do not.
+ */
+async function looksLikeKnexMigration(tree: TreeView, path: string): Promise<boolean> {
+  const blob = tree.blob(path);
+  if (!blob) return false;
+  let v = migrationMemo.get(blob);
+  if (v === undefined) {
+    const text = (await tree.read(path)) ?? '';
+    v = /\bup\b/.test(text) && (/\.schema\s*\.\s*\w+\s*\(/.test(text) || /\bknex\b/.test(text)) && !/\bqueryRunner\b|\bqueryInterface\b/.test(text);
+    migrationMemo.set(blob, v);
+  }
+  return v;
+}
+
+/** The files the given ones import from the project, transitively (at most `limit` files). */
+async function importClosure(tree: TreeView, start: readonly string[], skip: ReadonlySet<string>, limit = 500): Promise<string[]> {
+  const seen = new Set(start);
+  const queue = [...start];
+  const out: string[] = [];
+  for (let head = 0; head < queue.length && out.length < limit; head++) {
+    const p = queue[head]!;
+    for (const spec of await importsOf(tree, p)) {
+      const target = resolveImport(p, spec, (x) => tree.has(x));
+      if (!target || seen.has(target) || skip.has(target)) continue;
+      seen.add(target);
+      out.push(target);
+      queue.push(target);
+    }
+  }
+  return out;
+}
+
+function normalisePath(p: string): string {
+  return posix.normalize(p.replace(/\\/g, '/')).replace(/^\.\/+/, '').replace(/\/+$/, '');
+}
+
+/** The init (base-schema) files the options name, normalised. */
+export function initFiles(options: AdapterOptionValues): string[] {
+  return knexOptions(options).init.map(normalisePath);
+}
+
+interface Found {
+  knexfile?: string;
+  migrations: string[];
+  diagnostics: Diagnostic[];
+}
+
+/** The migrations of one knexfile at this commit. */
+async function fromKnexfile(tree: TreeView, knexfile: string, environment: string | undefined): Promise<Found> {
+  const config = await knexfileConfig(tree, knexfile);
+  const s = knexfileSettings(config ?? undefined, knexfile, environment);
+  const migrations: string[] = [];
+  for (const dir of s.directories) migrations.push(...migrationsIn(tree.under(dir), dir, s.loadExtensions).files);
+  return { knexfile, migrations, diagnostics: [] };
+}
+
+/**
+ * Locate the Knex migrations of one commit: the migration directories of the knexfile (read as
+ * a syntax tree, never run), else a directory named `migrations` whose files are Knex migrations;
+ * `--path` entries instead when given. Init files named by `--knex-init` come first. Files the
+ * migrations import from the project are included, so that their edits make versions.
+ */
+export async function locateKnex(tree: TreeView, req: LocateRequest): Promise<Located> {
+  const opts = knexOptions(req.options);
+  const init = initFiles(req.options).filter((p) => tree.has(p));
+  const diagnostics: Diagnostic[] = [];
+  let found: Found | null = null;
+  let ambiguous: Located['ambiguous'];
+  if (req.paths) {
+    const named = req.paths.filter((p) => tree.has(p) && isSourceFile(p) && !init.includes(p));
+    found = { migrations: named.filter((p) => !isKnexfile(p)), diagnostics: [] };
+    const kf = named.find(isKnexfile);
+    if (kf) found.knexfile = kf;
+  } else {
+    const all = [...tree.paths()];
+    const knexfiles = all.filter((p) => isKnexfile(p) && !p.includes('node_modules/'));
+    const byDir = new Map<string, string[]>();
+    for (const k of knexfiles) {
+      const d = posix.dirname(k);
+      byDir.set(d, [...(byDir.get(d) ?? []), k]);
+    }
+    const pick = (list: string[]): string =>
+      [...list].sort((a, b) => KNEXFILE_EXTENSIONS.indexOf(posix.extname(a)) - KNEXFILE_EXTENSIONS.indexOf(posix.extname(b)))[0]!;
+    if (byDir.has('.')) found = await fromKnexfile(tree, pick(byDir.get('.')!), opts.environment);
+    else if (byDir.size > 0) {
+      const candidates: Found[] = [];
+      for (const d of [...byDir.keys()].sort()) candidates.push(await fromKnexfile(tree, pick(byDir.get(d)!), opts.environment));
+      const distinct = new Map<string, Found>();
+      for (const c of candidates) {
+        const key = c.migrations.join('\n');
+        if (!distinct.has(key)) distinct.set(key, c);
+      }
+      const withMigrations = [...distinct.values()].filter((c) => c.migrations.length > 0);
+      if (distinct.size === 1) found = candidates[0]!;
+      else if (withMigrations.length === 1) found = withMigrations[0]!;
+      else if (withMigrations.length > 1) {
+        ambiguous = {
+          candidates: withMigrations.map((c) => [c.knexfile!]),
+          hint: `--path ${posix.dirname(withMigrations[0]!.migrations[0]!)} (or the migration directory of another knexfile)`,
+        };
+      } else found = candidates[0]!;
+    } else {
+      // no knexfile: directories named migrations whose files are Knex migrations (the root's first)
+      const dirs = [...new Set(all.filter((p) => /(^|\/)migrations\/[^/]+$/.test(p) && !p.includes('node_modules/')).map((p) => posix.dirname(p)))].sort(
+        (a, b) => a.split('/').length - b.split('/').length || (a < b ? -1 : a > b ? 1 : 0),
+      );
+      const hits: Found[] = [];
+      for (const dir of dirs) {
+        const files = migrationsIn(tree.under(dir), dir, DEFAULT_LOAD_EXTENSIONS).files;
+        let knexLike = false;
+        for (const f of files) if ((knexLike = await looksLikeKnexMigration(tree, f))) break;
+        if (knexLike) hits.push({ migrations: files, diagnostics: [] });
+      }
+      if (hits.length === 1 || (hits.length > 1 && posix.dirname(hits[0]!.migrations[0]!) === 'migrations')) found = hits[0]!;
+      else if (hits.length > 1) {
+        ambiguous = {
+          candidates: hits.map((h) => [posix.dirname(h.migrations[0]!) + '/']),
+          hint: `--path ${posix.dirname(hits[0]!.migrations[0]!)} (or another of them)`,
+        };
+      }
+    }
+  }
+  if (ambiguous) return { files: [], ambiguous, searched: SEARCHED };
+  const migrations = found?.migrations ?? [];
+  if (migrations.length === 0 && init.length === 0) {
+    return { files: [], ...(found?.knexfile ? { consulted: [found.knexfile] } : {}), searched: SEARCHED, diagnostics };
+  }
+  const core = [...init, ...migrations];
+  const skip = new Set<string>([...core, ...(found?.knexfile ? [found.knexfile] : [])]);
+  const helpers = await importClosure(tree, core, skip);
+  const files = [...(found?.knexfile ? [found.knexfile] : []), ...core, ...helpers];
+  return { files, searched: SEARCHED, ...(diagnostics.length ? { diagnostics } : {}) };
+}

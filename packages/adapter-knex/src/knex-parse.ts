@@ -1,0 +1,1190 @@
+import { createRequire } from 'node:module';
+import type { Diagnostic, FileFacts, SourceFile } from '@schema-strata/core';
+import type { Arg, Call, Chain, Cond, ExportEntry, FnIR, FnRef, KnexFacts, Param, Root, Stmt, Val } from './knex-facts.js';
+
+type TsModule = typeof import('ts-morph').ts;
+type Node = import('ts-morph').ts.Node;
+type Expression = import('ts-morph').ts.Expression;
+type Statement = import('ts-morph').ts.Statement;
+type SourceFileNode = import('ts-morph').ts.SourceFile;
+type FunctionLike =
+  | import('ts-morph').ts.FunctionDeclaration
+  | import('ts-morph').ts.FunctionExpression
+  | import('ts-morph').ts.ArrowFunction
+  | import('ts-morph').ts.MethodDeclaration;
+
+let tsModule: TsModule | null = null;
+/** The TypeScript compiler API bundled with ts-morph (loaded on first use). */
+export function ts(): TsModule {
+  if (!tsModule) {
+    const require = createRequire(import.meta.url);
+    tsModule = (require('ts-morph') as typeof import('ts-morph')).ts;
+  }
+  return tsModule;
+}
+
+/** What a name stands for while a file is compiled. */
+type Binding =
+  | { kind: 'val'; val: Val }
+  | { kind: 'local' }
+  | { kind: 'alias'; chain: Chain }
+  | { kind: 'cond'; cond: Cond }
+  | { kind: 'fn'; key: string }
+  | { kind: 'imp'; imp: string; name: string; path?: string[] }
+  | { kind: 'pkg'; module: string; name: string }
+  | { kind: 'handle'; stmt: Extract<Stmt, { k: 'chain' }> };
+
+class Scope {
+  private readonly map = new Map<string, Binding>();
+  constructor(readonly parent?: Scope) {}
+  get(name: string): Binding | undefined {
+    for (let s: Scope | undefined = this; s; s = s.parent) {
+      const b = s.map.get(name);
+      if (b) return b;
+    }
+    return undefined;
+  }
+  set(name: string, b: Binding): void {
+    this.map.set(name, b);
+  }
+}
+
+const PROMISE_ALL = new Set(['all', 'allSettled', 'race', 'any']);
+const PROMISE_SERIES = new Set(['each', 'mapSeries', 'map', 'mapSync']);
+const CONFIG_KEYS = new Set(['client', 'dialect', 'connection', 'migrations', 'useNullAsDefault', 'pool', 'searchPath']);
+
+/** Is a relative module specifier (a file of the project)? */
+export function isRelative(spec: string): boolean {
+  return spec.startsWith('./') || spec.startsWith('../') || spec === '.' || spec === '..';
+}
+
+/** A value, if it is a literal of JSON (no placeholders left). */
+export function isLiteral(v: Val): v is string | number | boolean | null {
+  return v === null || typeof v !== 'object';
+}
+
+/** Is a value an object literal (`{ obj: [...] }`)? */
+export function isObj(v: Val | undefined): v is { obj: Array<[string, Val]> } {
+  return !!v && typeof v === 'object' && 'obj' in v;
+}
+
+export function isArr(v: Val | undefined): v is { arr: Val[] } {
+  return !!v && typeof v === 'object' && 'arr' in v;
+}
+
+/** A member of an object value, or undefined. The last entry of a key wins, as in JavaScript. */
+export function member(v: Val, key: string): Val | undefined {
+  if (!isObj(v)) return undefined;
+  for (let i = v.obj.length - 1; i >= 0; i--) if (v.obj[i]![0] === key) return v.obj[i]![1];
+  return undefined;
+}
+
+class FileCompiler {
+  readonly fns: Record<string, FnIR> = {};
+  readonly imports: string[] = [];
+  private readonly pending = new Map<string, { node: FunctionLike; scope: Scope }>();
+  private readonly compiling = new Set<string>();
+  readonly top = new Scope();
+  private readonly t: TsModule;
+
+  constructor(private readonly sf: SourceFileNode) {
+    this.t = ts();
+  }
+
+  line(n: Node): number {
+    return this.sf.getLineAndCharacterOfPosition(n.getStart(this.sf)).line + 1;
+  }
+
+  text(n: Node): string {
+    const s = n.getText(this.sf);
+    return s.length > 200 ? s.slice(0, 197) + '...' : s;
+  }
+
+  private addImport(spec: string): void {
+    if (isRelative(spec) && !this.imports.includes(spec)) this.imports.push(spec);
+  }
+
+  // ---------------------------------------------------------------- functions
+
+  /** Register a function for compiling on demand; returns its key. */
+  registerFn(name: string, node: FunctionLike, scope: Scope, nested: boolean): string {
+    let key = nested ? `${name}@${this.line(node)}` : name;
+    while (this.pending.has(key) || this.fns[key]) key += "'";
+    this.pending.set(key, { node, scope });
+    return key;
+  }
+
+  /** Compile a registered function (once). */
+  ensureFn(key: string): void {
+    if (this.fns[key] || this.compiling.has(key)) return;
+    const p = this.pending.get(key);
+    if (!p) return;
+    this.compiling.add(key);
+    this.fns[key] = this.compileFn(p.node, p.scope);
+    this.compiling.delete(key);
+  }
+
+  compileFn(node: FunctionLike, outer: Scope, paramBindings?: Array<Binding | undefined>): FnIR {
+    const t = this.t;
+    const scope = new Scope(outer);
+    const params: Param[] = [];
+    node.parameters.forEach((p, i) => {
+      const pre = paramBindings?.[i];
+      if (t.isIdentifier(p.name)) {
+        params.push(p.name.text);
+        scope.set(p.name.text, pre ?? { kind: 'local' });
+      } else if (t.isObjectBindingPattern(p.name)) {
+        const props: Array<[string, string]> = [];
+        for (const el of p.name.elements) {
+          if (!t.isIdentifier(el.name)) continue;
+          const prop = el.propertyName && (t.isIdentifier(el.propertyName) || t.isStringLiteral(el.propertyName)) ? el.propertyName.text : el.name.text;
+          props.push([prop, el.name.text]);
+          scope.set(el.name.text, { kind: 'local' });
+        }
+        params.push({ props });
+      } else {
+        params.push(`_${i}`);
+      }
+    });
+    const usesThis = t.isFunctionExpression(node) || t.isFunctionDeclaration(node) || t.isMethodDeclaration(node);
+    const body: Stmt[] = [];
+    if (node.body) {
+      if (t.isBlock(node.body)) this.statements(node.body.statements, scope, body);
+      else this.effect(node.body as Expression, scope, body);
+    }
+    if (body.length > 0 && body[body.length - 1]!.k === 'return') body.pop();
+    return { params, body, ...(usesThis ? { usesThis: true } : {}), line: this.line(node) };
+  }
+
+  private isFunctionNode(e: Node): e is FunctionLike {
+    const t = this.t;
+    return t.isArrowFunction(e) || t.isFunctionExpression(e);
+  }
+
+  // ---------------------------------------------------------------- statements
+
+  statements(list: readonly Statement[], scope: Scope, out: Stmt[]): void {
+    const t = this.t;
+    // hoist function declarations
+    for (const st of list) {
+      if (t.isFunctionDeclaration(st) && st.name && st.body) {
+        scope.set(st.name.text, { kind: 'fn', key: this.registerFn(st.name.text, st, scope, scope !== this.top) });
+      }
+    }
+    for (const st of list) this.statement(st, scope, out);
+  }
+
+  statement(st: Statement, scope: Scope, out: Stmt[]): void {
+    const t = this.t;
+    if (t.isExpressionStatement(st)) this.effect(st.expression, scope, out, this.awaited(st.expression));
+    else if (t.isReturnStatement(st)) {
+      if (st.expression) this.effect(st.expression, scope, out);
+      out.push({ k: 'return', line: this.line(st) });
+    } else if (t.isVariableStatement(st)) this.variables(st.declarationList, scope, out);
+    else if (t.isIfStatement(st)) {
+      const cond = this.cond(st.expression, scope);
+      const th: Stmt[] = [];
+      const el: Stmt[] = [];
+      this.statement(st.thenStatement, new Scope(scope), th);
+      if (st.elseStatement) this.statement(st.elseStatement, new Scope(scope), el);
+      if ('lit' in cond) out.push(...(cond.lit ? th : el));
+      else out.push({ k: 'if', cond, then: th, else: el, line: this.line(st) });
+    } else if (t.isBlock(st)) this.statements(st.statements, new Scope(scope), out);
+    else if (t.isTryStatement(st)) {
+      this.statements(st.tryBlock.statements, new Scope(scope), out);
+      if (st.finallyBlock) this.statements(st.finallyBlock.statements, new Scope(scope), out);
+    } else if (t.isForOfStatement(st) || t.isForInStatement(st)) {
+      const inner = new Scope(scope);
+      const bind = this.loopBindings(st.initializer, inner);
+      const over = this.val(st.expression, scope);
+      const body: Stmt[] = [];
+      this.statement(st.statement, inner, body);
+      if (body.length > 0) out.push({ k: 'each', bind, over: t.isForInStatement(st) ? { keys: over } : over, body, line: this.line(st) });
+    } else if (t.isSwitchStatement(st)) {
+      const inner = new Scope(scope);
+      const cases = st.caseBlock.clauses.map((c) => {
+        const body: Stmt[] = [];
+        this.statements(c.statements, inner, body);
+        return t.isCaseClause(c) ? { test: this.val(c.expression, scope), body } : { body };
+      });
+      if (cases.some((c) => c.body.some((x) => x.k !== 'break'))) out.push({ k: 'switch', on: this.val(st.expression, scope), cases, line: this.line(st) });
+    } else if (t.isBreakStatement(st) && !st.label) {
+      out.push({ k: 'break', line: this.line(st) });
+    } else if (t.isContinueStatement(st) && !st.label) {
+      out.push({ k: 'continue', line: this.line(st) });
+    } else if (t.isForStatement(st) || t.isWhileStatement(st) || t.isDoStatement(st)) {
+      const inner: Stmt[] = [];
+      // such a loop is not followed; say so only when it holds builder calls
+      this.statement(st.statement, new Scope(scope), inner);
+      if (inner.some((x) => x.k !== 'break' && x.k !== 'continue')) {
+        out.push({
+          k: 'note', code: 'knex/not-followed', line: this.line(st),
+          message: 'a for, while or do loop with builder calls is not replayed (only for...of, for...in, forEach and map over known values are)',
+        });
+      }
+    } else if (t.isFunctionDeclaration(st) || t.isEmptyStatement(st) || t.isThrowStatement(st)) {
+      // hoisted above / nothing to replay
+    } else if (t.isLabeledStatement(st)) this.statement(st.statement, scope, out);
+  }
+
+  private loopBindings(init: import('ts-morph').ts.ForInitializer, scope: Scope): Param[] {
+    const t = this.t;
+    const decl = t.isVariableDeclarationList(init) ? init.declarations[0] : undefined;
+    const name = decl ? decl.name : t.isIdentifier(init) ? init : undefined;
+    if (!name) return ['_'];
+    if (t.isIdentifier(name)) {
+      scope.set(name.text, { kind: 'local' });
+      return [name.text];
+    }
+    if (t.isArrayBindingPattern(name)) {
+      const out: Param[] = [];
+      name.elements.forEach((el, i) => {
+        if (t.isBindingElement(el) && t.isIdentifier(el.name)) {
+          scope.set(el.name.text, { kind: 'local' });
+          out.push(el.name.text);
+        } else out.push(`_${i}`);
+      });
+      return [{ props: out.map((n, i) => [String(i), String(n)]) }];
+    }
+    if (t.isObjectBindingPattern(name)) {
+      const props: Array<[string, string]> = [];
+      for (const el of name.elements) {
+        if (!t.isIdentifier(el.name)) continue;
+        const prop = el.propertyName && t.isIdentifier(el.propertyName) ? el.propertyName.text : el.name.text;
+        props.push([prop, el.name.text]);
+        scope.set(el.name.text, { kind: 'local' });
+      }
+      return [{ props }];
+    }
+    return ['_'];
+  }
+
+  variables(list: import('ts-morph').ts.VariableDeclarationList, scope: Scope, out: Stmt[]): void {
+    const t = this.t;
+    for (const d of list.declarations) {
+      if (!d.initializer) {
+        if (t.isIdentifier(d.name)) scope.set(d.name.text, { kind: 'local' });
+        continue;
+      }
+      const init = this.unwrap(d.initializer);
+      if (t.isIdentifier(d.name)) {
+        const name = d.name.text;
+        if (this.isFunctionNode(init)) {
+          scope.set(name, { kind: 'fn', key: this.registerFn(name, init, scope, scope !== this.top) });
+          continue;
+        }
+        const req = this.requireOf(init);
+        if (req) {
+          if (isRelative(req.spec)) scope.set(name, { kind: 'imp', imp: req.spec, name: '*', ...(req.path.length ? { path: req.path } : {}) });
+          else scope.set(name, { kind: 'pkg', module: req.spec, name: req.path[0] ?? '*' });
+          continue;
+        }
+        const b = this.bindingOf(init, scope, out);
+        scope.set(name, b);
+      } else if (t.isObjectBindingPattern(d.name)) {
+        const req = this.requireOf(init);
+        const base = !req && this.rootKind(init, scope) === 'builder' ? this.chainOf(init, scope) : null;
+        for (const el of d.name.elements) {
+          if (!t.isIdentifier(el.name)) continue;
+          const prop = el.propertyName && (t.isIdentifier(el.propertyName) || t.isStringLiteral(el.propertyName)) ? el.propertyName.text : el.name.text;
+          if (req) {
+            if (isRelative(req.spec)) scope.set(el.name.text, { kind: 'imp', imp: req.spec, name: req.path[0] ?? prop, ...(req.path[0] ? { path: [...req.path.slice(1), prop] } : {}) });
+            else scope.set(el.name.text, { kind: 'pkg', module: req.spec, name: prop });
+          } else if (base) {
+            scope.set(el.name.text, { kind: 'alias', chain: { root: base.root, calls: [...base.calls, { m: prop, line: this.line(el) }] } });
+          } else {
+            const v = this.val(init, scope);
+            scope.set(el.name.text, { kind: 'val', val: this.memberOf(v, prop) });
+          }
+        }
+      } else if (t.isArrayBindingPattern(d.name)) {
+        for (const el of d.name.elements) if (t.isBindingElement(el) && t.isIdentifier(el.name)) scope.set(el.name.text, { kind: 'local' });
+      }
+    }
+  }
+
+  /** What `const x = <init>` binds x to; emits the initialiser's effect when it has one. */
+  private bindingOf(init: Expression, scope: Scope, out: Stmt[]): Binding {
+    const t = this.t;
+    if (this.rootKind(init, scope) === 'builder') {
+      const outer = this.outerMethod(init);
+      if (outer === 'then' || outer === 'catch' || outer === 'finally') {
+        this.effect(init, scope, out);
+        return { kind: 'local' };
+      }
+      const chain = this.chainOf(init, scope);
+      if (chain) {
+        const last = chain.calls[chain.calls.length - 1];
+        if (last && (last.m === 'hasTable' || last.m === 'hasColumn') && last.args) return { kind: 'cond', cond: { chain } };
+        if (chain.calls.every((c) => !c.args || c.m === 'withSchema')) return { kind: 'alias', chain };
+        const stmt: Extract<Stmt, { k: 'chain' }> = { k: 'chain', chain, line: this.line(init) };
+        out.push(stmt);
+        return { kind: 'handle', stmt };
+      }
+    }
+    if (t.isCallExpression(init)) {
+      const kind = this.rootKind(init, scope);
+      const outer = this.outerMethod(init);
+      const { root } = this.rootInfo(init);
+      const promise = t.isIdentifier(root) && (root.text === 'Promise' || root.text === 'Bluebird');
+      if (kind === 'fn' || kind === 'imp' || promise || outer === 'then' || this.isFunctionNode(this.unwrap(init.expression))) {
+        // a call of a helper, Promise.all(...): run it for its effects
+        this.effect(init, scope, out);
+        return { kind: 'local' };
+      }
+    }
+    return { kind: 'val', val: this.val(init, scope) };
+  }
+
+  /** The name of the outermost method called: `then` for `a.b().then(f)`. */
+  private outerMethod(e0: Expression): string | undefined {
+    const t = this.t;
+    const e = this.unwrap(e0);
+    if (!t.isCallExpression(e)) return undefined;
+    const callee = this.unwrap(e.expression);
+    return t.isPropertyAccessExpression(callee) ? callee.name.text : undefined;
+  }
+
+  /** `require('x')`, `require('x').a.b`: the specifier and member path. */
+  private requireOf(e: Expression): { spec: string; path: string[] } | null {
+    const t = this.t;
+    const path: string[] = [];
+    let cur: Expression = e;
+    while (t.isPropertyAccessExpression(cur)) {
+      path.unshift(cur.name.text);
+      cur = cur.expression;
+    }
+    if (t.isCallExpression(cur) && t.isIdentifier(cur.expression) && cur.expression.text === 'require' && cur.arguments.length === 1) {
+      const a = cur.arguments[0]!;
+      if (t.isStringLiteral(a) || t.isNoSubstitutionTemplateLiteral(a)) {
+        this.addImport(a.text);
+        return { spec: a.text, path };
+      }
+    }
+    return null;
+  }
+
+  unwrap(e: Expression): Expression {
+    const t = this.t;
+    for (;;) {
+      if (t.isParenthesizedExpression(e) || t.isAsExpression(e) || t.isNonNullExpression(e) || t.isSatisfiesExpression(e) || t.isTypeAssertionExpression(e)) e = e.expression;
+      else if (t.isAwaitExpression(e) || t.isVoidExpression(e)) e = e.expression;
+      else return e;
+    }
+  }
+
+  // ---------------------------------------------------------------- chains
+
+  /** The name or `this` a chain starts from, and the first member read or called on it, without compiling anything. */
+  private rootInfo(e0: Expression): { root: Node; first?: string; direct: boolean } {
+    const t = this.t;
+    let cur: Node = this.unwrap(e0);
+    let first: string | undefined;
+    let direct = false;
+    for (;;) {
+      if (t.isCallExpression(cur)) {
+        const callee = this.unwrap(cur.expression);
+        if (t.isIdentifier(callee)) direct = true;
+        cur = callee;
+      } else if (t.isPropertyAccessExpression(cur)) {
+        first = cur.name.text;
+        direct = false;
+        cur = this.unwrap(cur.expression);
+      } else if (t.isElementAccessExpression(cur)) {
+        first = t.isStringLiteral(cur.argumentExpression) ? cur.argumentExpression.text : undefined;
+        direct = false;
+        cur = this.unwrap(cur.expression);
+      } else return { root: cur, first, direct };
+    }
+  }
+
+  /** What a chain's root name is bound to. */
+  private rootKind(e: Expression, scope: Scope): 'builder' | 'fn' | 'imp' | 'value' | 'other' {
+    const t = this.t;
+    const { root, first } = this.rootInfo(e);
+    if (root.kind === t.SyntaxKind.ThisKeyword) return 'builder';
+    if (!t.isIdentifier(root)) return 'other';
+    const b = scope.get(root.text);
+    const knexish = first === 'schema' || first === 'raw' || first === 'transaction';
+    if (!b) return knexish ? 'builder' : 'other';
+    switch (b.kind) {
+      case 'local':
+      case 'alias':
+      case 'handle':
+        return 'builder';
+      case 'fn':
+        return 'fn';
+      case 'imp':
+        return knexish ? 'builder' : 'imp';
+      case 'pkg':
+        return knexish ? 'builder' : 'other';
+      case 'val':
+        return isUnknown(b.val) && knexish ? 'builder' : 'value';
+      default:
+        return 'value';
+    }
+  }
+
+  /** Flatten `a.b(c).d` into a root and calls, or null when it does not start from a name or `this`. */
+  chainOf(e0: Expression, scope: Scope): Chain | null {
+    const t = this.t;
+    const calls: Call[] = [];
+    let e = this.unwrap(e0);
+    for (;;) {
+      if (t.isCallExpression(e)) {
+        const callee = this.unwrap(e.expression);
+        if (t.isPropertyAccessExpression(callee)) {
+          calls.unshift({ m: callee.name.text, args: e.arguments.map((a) => this.arg(a, scope)), line: this.line(callee.name) });
+          e = this.unwrap(callee.expression);
+        } else if (t.isElementAccessExpression(callee)) {
+          const k = this.val(callee.argumentExpression, scope);
+          const args = e.arguments.map((a) => this.arg(a, scope));
+          calls.unshift(typeof k === 'string' ? { m: k, args, line: this.line(callee) } : { m: '[]', key: k, args, line: this.line(callee) });
+          e = this.unwrap(callee.expression);
+        } else if (t.isIdentifier(callee)) {
+          calls.unshift({ m: '()', args: e.arguments.map((a) => this.arg(a, scope)), line: this.line(e) });
+          e = callee;
+        } else return null;
+      } else if (t.isPropertyAccessExpression(e)) {
+        calls.unshift({ m: e.name.text, line: this.line(e.name) });
+        e = this.unwrap(e.expression);
+      } else if (t.isElementAccessExpression(e) && t.isStringLiteral(e.argumentExpression)) {
+        calls.unshift({ m: e.argumentExpression.text, line: this.line(e) });
+        e = this.unwrap(e.expression);
+      } else break;
+    }
+    if (e.kind === t.SyntaxKind.ThisKeyword) return { root: { this: true }, calls };
+    if (!t.isIdentifier(e)) return null;
+    const name = e.text;
+    const b = scope.get(name);
+    if (!b) return { root: { free: name }, calls };
+    switch (b.kind) {
+      case 'local':
+        return { root: { local: name }, calls };
+      case 'alias':
+        return { root: b.chain.root, calls: [...b.chain.calls, ...calls] };
+      case 'handle':
+        return { root: b.stmt.chain.root, calls: [...b.stmt.chain.calls, ...calls] };
+      case 'imp':
+        return { root: { imp: b.imp, name: b.name, ...(b.path ? { path: b.path } : {}) }, calls };
+      default:
+        return { root: { free: name }, calls };
+    }
+  }
+
+  private arg(a: Expression, scope: Scope): Arg {
+    const t = this.t;
+    const e = this.unwrap(a);
+    if (this.isFunctionNode(e)) return { cb: this.compileFn(e, scope) };
+    if (t.isIdentifier(e)) {
+      const b = scope.get(e.text);
+      if (b?.kind === 'fn') {
+        this.ensureFn(b.key);
+        return { fnref: { local: b.key } };
+      }
+    }
+    return this.val(a, scope);
+  }
+
+  // ---------------------------------------------------------------- effects
+
+  /** Is an expression statement awaited (or yielded), so that a Knex builder in it runs? */
+  private awaited(e0: Expression): boolean {
+    const t = this.t;
+    let e = e0;
+    while (t.isParenthesizedExpression(e) || t.isAsExpression(e) || t.isNonNullExpression(e) || t.isSatisfiesExpression(e)) e = e.expression;
+    return t.isAwaitExpression(e) || t.isYieldExpression(e);
+  }
+
+  /**
+   * Compile an expression evaluated for its effect. `consumed` is false for a statement that
+   * neither awaits nor returns its value: a Knex schema builder there never runs (it runs when
+   * awaited or `then`-ed); the replay reports it and leaves it out.
+   */
+  effect(e0: Expression, scope: Scope, out: Stmt[], consumed = true): void {
+    const t = this.t;
+    const e = this.unwrap(e0);
+    const line = this.line(e);
+    if (t.isBinaryExpression(e)) {
+      const op = e.operatorToken.kind;
+      if (op === t.SyntaxKind.AmpersandAmpersandToken || op === t.SyntaxKind.BarBarToken) {
+        const c = this.cond(e.left, scope);
+        const body: Stmt[] = [];
+        this.effect(e.right, scope, body, consumed);
+        if (body.length === 0) return;
+        const cond: Cond = op === t.SyntaxKind.BarBarToken ? { not: c } : c;
+        out.push({ k: 'if', cond, then: body, else: [], line });
+        return;
+      }
+      if (op === t.SyntaxKind.CommaToken) {
+        this.effect(e.left, scope, out, false);
+        this.effect(e.right, scope, out, consumed);
+      }
+      return;
+    }
+    if (t.isConditionalExpression(e)) {
+      const th: Stmt[] = [];
+      const el: Stmt[] = [];
+      this.effect(e.whenTrue, scope, th, consumed);
+      this.effect(e.whenFalse, scope, el, consumed);
+      if (th.length || el.length) out.push({ k: 'if', cond: this.cond(e.condition, scope), then: th, else: el, line });
+      return;
+    }
+    if (t.isArrayLiteralExpression(e)) {
+      for (const x of e.elements) this.effect(x, scope, out);
+      return;
+    }
+    if (!t.isCallExpression(e)) return;
+    const callee = this.unwrap(e.expression);
+
+    // an immediately invoked function
+    if (this.isFunctionNode(callee)) {
+      const fn = this.compileFn(callee, scope);
+      if (fn.body.length > 0) out.push({ k: 'block', body: fn.body, line });
+      return;
+    }
+
+    if (t.isPropertyAccessExpression(callee)) {
+      const method = callee.name.text;
+      const recv = this.unwrap(callee.expression);
+      // Promise.all([...]) / Promise.all(xs.map(cb)) / Bluebird.each(xs, cb)
+      // (older Knex passed a Promise library as up's second parameter: `function (knex, Promise)`)
+      if (t.isIdentifier(recv) && (recv.text === 'Promise' || recv.text === 'Bluebird' || recv.text === 'BPromise' || recv.text === 'P')) {
+        if (PROMISE_ALL.has(method) && e.arguments[0]) {
+          this.effect(e.arguments[0], scope, out);
+          return;
+        }
+        if (PROMISE_SERIES.has(method) && e.arguments.length >= 2) {
+          this.loopOver(e.arguments[0]!, e.arguments[1]!, scope, out, line);
+          return;
+        }
+      }
+      // .then(cb) on anything: its receiver first, then the callback's statements
+      if ((method === 'then' || method === 'finally') && e.arguments.length > 0) {
+        const result = this.resultOf(recv, scope, out);
+        const cb = this.unwrap(e.arguments[0]!);
+        if (this.isFunctionNode(cb)) {
+          const fn = this.compileFn(cb, scope, [result]);
+          if (fn.body.length > 0) out.push({ k: 'block', body: fn.body, line });
+        } else if (t.isIdentifier(cb)) {
+          const b = scope.get(cb.text);
+          if (b?.kind === 'fn') {
+            this.ensureFn(b.key);
+            out.push({ k: 'invoke', fn: { local: b.key }, args: [], line });
+          }
+        }
+        return;
+      }
+      if (method === 'catch') {
+        this.effect(recv, scope, out);
+        return;
+      }
+      // xs.forEach(cb) / xs.map(cb) over a value (not a builder)
+      if ((method === 'forEach' || method === 'map' || method === 'flatMap') && e.arguments[0] && this.rootKind(recv, scope) !== 'builder') {
+        this.loopOver(recv, e.arguments[0], scope, out, line);
+        return;
+      }
+    }
+
+    const kind = this.rootKind(e, scope);
+    const info = this.rootInfo(e);
+    const rootName = t.isIdentifier(info.root) ? info.root.text : undefined;
+    if (kind === 'fn' && info.direct && rootName && t.isIdentifier(callee)) {
+      // a helper function of this file
+      const b = scope.get(rootName) as Extract<Binding, { kind: 'fn' }>;
+      this.ensureFn(b.key);
+      out.push({ k: 'invoke', fn: { local: b.key }, args: e.arguments.map((a) => this.arg(a, scope)), line });
+      return;
+    }
+    if (kind === 'imp' && rootName) {
+      // a helper function of another project file: f(...), ns.f(...), obj.f(...)
+      const b = scope.get(rootName) as Extract<Binding, { kind: 'imp' }>;
+      const path = [...(b.path ?? [])];
+      let cur: Expression = callee;
+      const names: string[] = [];
+      while (t.isPropertyAccessExpression(cur)) {
+        names.unshift(cur.name.text);
+        cur = this.unwrap(cur.expression);
+      }
+      if (!t.isIdentifier(cur)) return;
+      path.push(...names);
+      const fn: FnRef = b.name === '*' && path.length > 0
+        ? { imp: b.imp, name: path[0]!, ...(path.length > 1 ? { path: path.slice(1) } : {}) }
+        : { imp: b.imp, name: b.name, ...(path.length ? { path } : {}) };
+      out.push({ k: 'invoke', fn, args: e.arguments.map((a) => this.arg(a, scope)), line });
+      return;
+    }
+    if (kind === 'builder') {
+      const chain = this.chainOf(e, scope);
+      if (!chain) return;
+      const b = rootName ? scope.get(rootName) : undefined;
+      if (b?.kind === 'handle') {
+        // col.notNullable() on `const col = t.integer('x')`: continue that statement's chain
+        b.stmt.chain.calls = chain.calls;
+        return;
+      }
+      out.push({ k: 'chain', chain, line, ...(consumed ? {} : { lazy: true as const }) });
+      return;
+    }
+    if (kind === 'other' && rootName && e.arguments.length > 0) {
+      // a function the parse cannot see; a diagnostic at replay if a builder is handed to it
+      const args = e.arguments.map((a) => this.arg(a, scope));
+      if (args.some((a) => typeof a === 'object' && a !== null && ('local' in a || 'cb' in a))) {
+        out.push({ k: 'opaque', callee: this.text(callee), args, line });
+      }
+    }
+  }
+
+  /** Emit the effect of a promise-producing expression; what its resolved value stands for. */
+  private resultOf(e0: Expression, scope: Scope, out: Stmt[]): Binding | undefined {
+    const e = this.unwrap(e0);
+    const m = this.outerMethod(e);
+    if ((m === 'hasTable' || m === 'hasColumn') && this.rootKind(e, scope) === 'builder') {
+      const chain = this.chainOf(e, scope);
+      if (chain) return { kind: 'cond', cond: { chain } };
+    }
+    this.effect(e, scope, out);
+    return undefined;
+  }
+
+  private loopOver(list: Expression, cb0: Expression, scope: Scope, out: Stmt[], line: number): void {
+    const t = this.t;
+    const over = this.val(list, scope);
+    const cb = this.unwrap(cb0);
+    if (this.isFunctionNode(cb)) {
+      const fn = this.compileFn(cb, scope);
+      if (fn.body.length > 0) out.push({ k: 'each', bind: fn.params.slice(0, 1), over, body: fn.body, line, fn: true });
+    } else if (t.isIdentifier(cb)) {
+      const b = scope.get(cb.text);
+      if (b?.kind === 'fn') {
+        this.ensureFn(b.key);
+        out.push({ k: 'each', bind: ['$item'], over, body: [{ k: 'invoke', fn: { local: b.key }, args: [{ local: '$item' }], line }], line, fn: true });
+      }
+    }
+  }
+
+  // ---------------------------------------------------------------- conditions
+
+  cond(e0: Expression, scope: Scope): Cond {
+    const t = this.t;
+    const e = this.unwrap(e0);
+    if (t.isPrefixUnaryExpression(e) && e.operator === t.SyntaxKind.ExclamationToken) {
+      const c = this.cond(e.operand, scope);
+      return 'lit' in c ? { lit: !c.lit } : { not: c };
+    }
+    if (t.isBinaryExpression(e)) {
+      const op = e.operatorToken.kind;
+      if (op === t.SyntaxKind.AmpersandAmpersandToken) return { and: [this.cond(e.left, scope), this.cond(e.right, scope)] };
+      if (op === t.SyntaxKind.BarBarToken) return { or: [this.cond(e.left, scope), this.cond(e.right, scope)] };
+      const eq = op === t.SyntaxKind.EqualsEqualsEqualsToken || op === t.SyntaxKind.EqualsEqualsToken;
+      const ne = op === t.SyntaxKind.ExclamationEqualsEqualsToken || op === t.SyntaxKind.ExclamationEqualsToken;
+      if (eq || ne) {
+        const a = this.val(e.left, scope);
+        const b = this.val(e.right, scope);
+        if (isLiteral(a) && isLiteral(b)) return { lit: (a === b) === eq };
+        return { eq: [a, b], ...(ne ? { neg: true } : {}) };
+      }
+    }
+    if (e.kind === t.SyntaxKind.TrueKeyword) return { lit: true };
+    if (e.kind === t.SyntaxKind.FalseKeyword) return { lit: false };
+    if (t.isIdentifier(e)) {
+      const b = scope.get(e.text);
+      if (b?.kind === 'cond') return b.cond;
+      if (b?.kind === 'val') return isLiteral(b.val) ? { lit: !!b.val } : { truthy: b.val };
+      if (b?.kind === 'local') return { truthy: { local: e.text } };
+    }
+    if (t.isCallExpression(e)) {
+      const m = this.outerMethod(e);
+      if ((m === 'hasTable' || m === 'hasColumn') && this.rootKind(e, scope) === 'builder') {
+        const chain = this.chainOf(e, scope);
+        if (chain) return { chain };
+      }
+    }
+    const v = this.val(e, scope);
+    if (isLiteral(v)) return { lit: !!v };
+    if (typeof v === 'object' && v !== null && !('expr' in v)) return { truthy: v };
+    return { unknown: this.text(e), line: this.line(e) };
+  }
+
+  // ---------------------------------------------------------------- values
+
+  memberOf(v: Val, key: string): Val {
+    if (isObj(v)) {
+      const m = member(v, key);
+      if (m !== undefined) return m;
+      return v.obj.some(([k]) => k === '...') ? { at: v, key } : { undef: true };
+    }
+    if (isArr(v) && key === 'length') return v.arr.length;
+    if (typeof v === 'object' && v !== null) {
+      if ('imp' in v) return { ...v, path: [...(v.path ?? []), key] };
+      if ('local' in v) return { ...v, path: [...(v.path ?? []), key] };
+    }
+    if (typeof v === 'string' && key === 'length') return v.length;
+    return { at: v, key };
+  }
+
+  val(e0: Expression, scope: Scope): Val {
+    const t = this.t;
+    const e = this.unwrap(e0);
+    if (t.isStringLiteral(e) || t.isNoSubstitutionTemplateLiteral(e)) return e.text;
+    if (t.isNumericLiteral(e)) return Number(e.text);
+    if (t.isPrefixUnaryExpression(e) && e.operator === t.SyntaxKind.MinusToken && t.isNumericLiteral(e.operand)) return -Number(e.operand.text);
+    if (e.kind === t.SyntaxKind.TrueKeyword) return true;
+    if (e.kind === t.SyntaxKind.FalseKeyword) return false;
+    if (e.kind === t.SyntaxKind.NullKeyword) return null;
+    if (t.isTemplateExpression(e)) {
+      const parts: Val[] = [e.head.text];
+      for (const s of e.templateSpans) parts.push(this.val(s.expression, scope), s.literal.text);
+      return concat(parts);
+    }
+    if (t.isArrayLiteralExpression(e)) {
+      const arr: Val[] = [];
+      for (const x of e.elements) {
+        if (t.isSpreadElement(x)) {
+          const v = this.val(x.expression, scope);
+          if (isArr(v)) arr.push(...v.arr);
+          else return { expr: this.text(e) };
+        } else arr.push(this.val(x, scope));
+      }
+      return { arr };
+    }
+    if (t.isObjectLiteralExpression(e)) {
+      const obj: Array<[string, Val]> = [];
+      for (const p of e.properties) {
+        if (t.isPropertyAssignment(p)) {
+          const k = this.propName(p.name, scope);
+          if (k !== null) obj.push([k, this.val(p.initializer, scope)]);
+        } else if (t.isShorthandPropertyAssignment(p)) {
+          obj.push([p.name.text, this.identifierVal(p.name.text, scope)]);
+        } else if (t.isSpreadAssignment(p)) {
+          const v = this.val(p.expression, scope);
+          if (isObj(v)) obj.push(...v.obj);
+          else obj.push(['...', v]);
+        } else if (t.isMethodDeclaration(p)) {
+          const k = this.propName(p.name, scope);
+          if (k !== null) obj.push([k, { expr: 'function' }]);
+        }
+      }
+      return { obj };
+    }
+    if (t.isIdentifier(e)) return this.identifierVal(e.text, scope);
+    if (e.kind === t.SyntaxKind.ThisKeyword) return { local: 'this' };
+    if (t.isPropertyAccessExpression(e)) {
+      const base = this.unwrap(e.expression);
+      if (t.isPropertyAccessExpression(base) && t.isIdentifier(base.expression) && base.expression.text === 'process' && base.name.text === 'env') {
+        return { env: e.name.text };
+      }
+      if (t.isMetaProperty(base) && (e.name.text === 'dirname')) return { dir: true };
+      return this.memberOf(this.val(base, scope), e.name.text);
+    }
+    if (t.isElementAccessExpression(e)) {
+      const key = this.val(e.argumentExpression, scope);
+      const base = this.val(e.expression, scope);
+      if (typeof key === 'string') return this.memberOf(base, key);
+      if (typeof key === 'number' && isArr(base)) return base.arr[key] ?? { undef: true };
+      return { at: base, key };
+    }
+    if (t.isBinaryExpression(e)) {
+      const op = e.operatorToken.kind;
+      if (op === t.SyntaxKind.PlusToken) {
+        const a = this.val(e.left, scope);
+        const b = this.val(e.right, scope);
+        if (typeof a === 'number' && typeof b === 'number') return a + b;
+        return concat([a, b]);
+      }
+      const cmp = [t.SyntaxKind.EqualsEqualsEqualsToken, t.SyntaxKind.EqualsEqualsToken, t.SyntaxKind.ExclamationEqualsEqualsToken, t.SyntaxKind.ExclamationEqualsToken];
+      if (cmp.includes(op)) {
+        const c = this.cond(e, scope);
+        return 'lit' in c ? c.lit : { when: c, then: true, else: false };
+      }
+      if (op === t.SyntaxKind.BarBarToken || op === t.SyntaxKind.QuestionQuestionToken) {
+        const a = this.val(e.left, scope);
+        const b = this.val(e.right, scope);
+        if (isLiteral(a)) return (op === t.SyntaxKind.BarBarToken ? !!a : a !== null) ? a : b;
+        if (isObj(a) || isArr(a)) return a;
+        return { or: [a, b] };
+      }
+      return { expr: this.text(e) };
+    }
+    if (t.isConditionalExpression(e)) {
+      const c = this.cond(e.condition, scope);
+      if ('lit' in c) return this.val(c.lit ? e.whenTrue : e.whenFalse, scope);
+      return { when: c, then: this.val(e.whenTrue, scope), else: this.val(e.whenFalse, scope) };
+    }
+    if (t.isCallExpression(e)) return this.callVal(e, scope);
+    if (e.kind === t.SyntaxKind.UndefinedKeyword) return { undef: true };
+    return { expr: this.text(e) };
+  }
+
+  private identifierVal(name: string, scope: Scope): Val {
+    const b = scope.get(name);
+    if (!b) {
+      if (name === '__dirname') return { dir: true };
+      if (name === 'undefined') return { undef: true };
+      return { expr: name };
+    }
+    switch (b.kind) {
+      case 'val':
+        return b.val;
+      case 'local':
+        return { local: name };
+      case 'imp':
+        return { imp: b.imp, name: b.name, ...(b.path ? { path: b.path } : {}) };
+      default:
+        return { expr: name };
+    }
+  }
+
+  private propName(n: import('ts-morph').ts.PropertyName, scope: Scope): string | null {
+    const t = this.t;
+    if (t.isIdentifier(n) || t.isStringLiteral(n) || t.isNumericLiteral(n) || t.isPrivateIdentifier(n)) return n.text;
+    if (t.isComputedPropertyName(n)) {
+      const v = this.val(n.expression, scope);
+      return typeof v === 'string' || typeof v === 'number' ? String(v) : null;
+    }
+    return null;
+  }
+
+  private callVal(e: import('ts-morph').ts.CallExpression, scope: Scope): Val {
+    const t = this.t;
+    const callee = this.unwrap(e.expression);
+    const args = () => e.arguments.map((a) => this.val(a, scope));
+    const req = this.requireOf(e);
+    if (req) return isRelative(req.spec) ? { imp: req.spec, name: '*' } : { expr: this.text(e) };
+    if (t.isIdentifier(callee)) {
+      const b = scope.get(callee.text);
+      const fromPath = b?.kind === 'pkg' && (b.module === 'path' || b.module === 'node:path');
+      if ((fromPath && (b.name === 'join' || b.name === 'resolve')) || (!b && (callee.text === 'join' || callee.text === 'resolve'))) return { join: args() };
+      if (fromPath && b.name === 'dirname') return this.dirnameOf(e);
+      if (callee.text === 'String' && e.arguments[0]) return this.val(e.arguments[0], scope);
+      return { expr: this.text(e) };
+    }
+    if (t.isPropertyAccessExpression(callee)) {
+      const m = callee.name.text;
+      const recv = this.unwrap(callee.expression);
+      if (t.isIdentifier(recv)) {
+        const b = scope.get(recv.text);
+        const isPath = (b?.kind === 'pkg' && (b.module === 'path' || b.module === 'node:path')) || (!b && recv.text === 'path');
+        if (isPath && (m === 'join' || m === 'resolve')) return { join: args() };
+        if (isPath && m === 'dirname') return this.dirnameOf(e);
+        if (recv.text === 'Object' && !b && (m === 'keys' || m === 'values' || m === 'entries') && e.arguments[0]) {
+          const v = this.val(e.arguments[0], scope);
+          return m === 'keys' ? { keys: v } : m === 'values' ? { values: v } : { entries: v };
+        }
+      }
+      if (t.isPropertyAccessExpression(recv) && (recv.name.text === 'posix') && (m === 'join' || m === 'resolve')) return { join: args() };
+      if (m === 'raw') return { raw: e.arguments[0] ? this.val(e.arguments[0], scope) : '' };
+      if (t.isPropertyAccessExpression(recv) && recv.name.text === 'fn') return { fn: m, args: args() };
+      const base = this.val(recv, scope);
+      if (typeof base === 'string') {
+        if (m === 'toLowerCase') return base.toLowerCase();
+        if (m === 'toUpperCase') return base.toUpperCase();
+        if (m === 'trim') return base.trim();
+        if (m === 'toString') return base;
+      }
+      if (m === 'toString' && typeof base === 'number') return String(base);
+      if ((m === 'concat') && isArr(base)) {
+        const rest = args();
+        if (rest.every(isArr)) return { arr: [...base.arr, ...rest.flatMap((r) => (r as { arr: Val[] }).arr)] };
+      }
+      if (m === 'join' && isArr(base) && base.arr.every((x) => typeof x === 'string')) {
+        const sep = e.arguments[0] ? this.val(e.arguments[0], scope) : ',';
+        if (typeof sep === 'string') return base.arr.join(sep);
+      }
+    }
+    return { expr: this.text(e) };
+  }
+
+  /** `path.dirname(fileURLToPath(import.meta.url))` and `path.dirname(__filename)`: the file's directory. */
+  private dirnameOf(e: import('ts-morph').ts.CallExpression): Val {
+    const a = e.arguments[0] ? this.text(e.arguments[0]) : '';
+    if (/import\.meta\.url|__filename/.test(a)) return { dir: true };
+    return { expr: this.text(e) };
+  }
+
+  // ---------------------------------------------------------------- the file
+
+  compileFile(): KnexFacts {
+    const t = this.t;
+    const sf = this.sf;
+    const exports: Record<string, ExportEntry> = {};
+    const scope = this.top;
+    const topStmts: Stmt[] = [];
+    let defaultVal: Val | undefined;
+
+    // imports first: they are hoisted
+    for (const st of sf.statements) {
+      if (!t.isImportDeclaration(st) || !t.isStringLiteral(st.moduleSpecifier)) continue;
+      const spec = st.moduleSpecifier.text;
+      this.addImport(spec);
+      const clause = st.importClause;
+      if (!clause) continue;
+      const bind = (local: string, name: string): void => {
+        scope.set(local, isRelative(spec) ? { kind: 'imp', imp: spec, name } : { kind: 'pkg', module: spec, name });
+      };
+      if (clause.name) bind(clause.name.text, 'default');
+      const nb = clause.namedBindings;
+      if (nb && t.isNamespaceImport(nb)) bind(nb.name.text, '*');
+      if (nb && t.isNamedImports(nb)) for (const el of nb.elements) bind(el.name.text, (el.propertyName ?? el.name).text);
+    }
+
+    const reexports: string[] = [];
+    const reexport = (spec: string): void => {
+      if (isRelative(spec) && !reexports.includes(spec)) reexports.push(spec);
+    };
+    const exportFn = (name: string, key: string): void => {
+      exports[name] = { fn: key };
+    };
+    const exportValue = (name: string, init: Expression): void => {
+      const e = this.unwrap(init);
+      if (this.isFunctionNode(e)) {
+        exportFn(name, this.registerFn(name, e, scope, false));
+        return;
+      }
+      if (t.isIdentifier(e)) {
+        const b = scope.get(e.text);
+        if (b?.kind === 'fn') return exportFn(name, b.key);
+      }
+      exports[name] = { val: this.val(e, scope) };
+    };
+    /**
+     * `module.exports = {...}` (and TypeScript's `export = {...}`): each member is also a named
+     * export, as Node's CommonJS interop sees it. `export default {...}` is only the default
+     * export: Knex reads `up` from the module itself, so such a migration has no up().
+     */
+    const exportObject = (e0: Expression, commonjs: boolean): void => {
+      const e = this.unwrap(e0);
+      if (t.isObjectLiteralExpression(e) && !commonjs) {
+        defaultVal = this.val(e, scope);
+        exports['default'] = { val: defaultVal };
+        return;
+      }
+      if (t.isObjectLiteralExpression(e)) {
+        for (const p of e.properties) {
+          if (t.isPropertyAssignment(p)) {
+            const k = this.propName(p.name, scope);
+            if (k !== null) exportValue(k, p.initializer);
+          } else if (t.isShorthandPropertyAssignment(p)) {
+            const b = scope.get(p.name.text);
+            if (b?.kind === 'fn') exportFn(p.name.text, b.key);
+            else exports[p.name.text] = { val: this.identifierVal(p.name.text, scope) };
+          } else if (t.isMethodDeclaration(p) && p.body) {
+            const k = this.propName(p.name, scope);
+            if (k !== null) exportFn(k, this.registerFn(k, p, scope, false));
+          } else if (t.isSpreadAssignment(p)) {
+            // module.exports = { ...require('./a'), ...b }: a's (or b's module's) exports pass on
+            const inner = this.unwrap(p.expression);
+            const req = this.requireOf(inner);
+            if (req && req.path.length === 0) reexport(req.spec);
+            else if (t.isIdentifier(inner)) {
+              const b = scope.get(inner.text);
+              if (b?.kind === 'imp' && b.name === '*' && !b.path) reexport(b.imp);
+            }
+          }
+        }
+        defaultVal = this.val(e, scope);
+        exports['default'] = { val: defaultVal };
+        return;
+      }
+      if (t.isIdentifier(e)) {
+        const b = scope.get(e.text);
+        if (b?.kind === 'fn') return exportFn('default', b.key);
+        if (b?.kind === 'val') {
+          if (commonjs && isObj(b.val)) for (const [k, v] of b.val.obj) if (k !== '...') exports[k] = { val: v };
+          defaultVal = b.val;
+          exports['default'] = { val: defaultVal };
+          return;
+        }
+        if (b?.kind === 'imp') {
+          exports['default'] = { val: { imp: b.imp, name: b.name, ...(b.path ? { path: b.path } : {}) } };
+          return;
+        }
+      }
+      if (this.isFunctionNode(e)) return exportFn('default', this.registerFn('default', e, scope, false));
+      defaultVal = this.val(e, scope);
+      exports['default'] = { val: defaultVal };
+    };
+
+    for (const st of sf.statements) {
+      if (t.isFunctionDeclaration(st) && st.name && st.body) {
+        scope.set(st.name.text, { kind: 'fn', key: this.registerFn(st.name.text, st, scope, false) });
+      }
+    }
+    for (const st of sf.statements) {
+      const isExported = (t.canHaveModifiers(st) ? t.getModifiers(st) ?? [] : []).some((m) => m.kind === t.SyntaxKind.ExportKeyword);
+      const isDefault = (t.canHaveModifiers(st) ? t.getModifiers(st) ?? [] : []).some((m) => m.kind === t.SyntaxKind.DefaultKeyword);
+      if (t.isImportDeclaration(st)) continue;
+      if (t.isFunctionDeclaration(st)) {
+        if (st.name && st.body && isExported) {
+          const b = scope.get(st.name.text);
+          if (b?.kind === 'fn') exportFn(isDefault ? 'default' : st.name.text, b.key);
+        } else if (!st.name && st.body && isDefault) {
+          exportFn('default', this.registerFn('default', st, scope, false));
+        }
+        continue;
+      }
+      if (t.isVariableStatement(st)) {
+        this.variables(st.declarationList, scope, topStmts);
+        if (isExported) {
+          for (const d of st.declarationList.declarations) {
+            if (!t.isIdentifier(d.name)) continue;
+            const b = scope.get(d.name.text);
+            if (b?.kind === 'fn') exportFn(d.name.text, b.key);
+            else if (b?.kind === 'val') exports[d.name.text] = { val: b.val };
+            else if (b?.kind === 'imp') exports[d.name.text] = { val: { imp: b.imp, name: b.name, ...(b.path ? { path: b.path } : {}) } };
+          }
+        }
+        continue;
+      }
+      if (t.isExportAssignment(st)) {
+        exportObject(st.expression, !!st.isExportEquals);
+        continue;
+      }
+      if (t.isExportDeclaration(st)) {
+        const from = st.moduleSpecifier && t.isStringLiteral(st.moduleSpecifier) ? st.moduleSpecifier.text : undefined;
+        if (from) this.addImport(from);
+        if (from && !st.exportClause) reexport(from);
+        if (st.exportClause && t.isNamedExports(st.exportClause)) {
+          for (const el of st.exportClause.elements) {
+            const local = (el.propertyName ?? el.name).text;
+            const name = el.name.text;
+            if (from) {
+              if (isRelative(from)) exports[name] = { val: { imp: from, name: local } };
+              continue;
+            }
+            const b = scope.get(local);
+            if (b?.kind === 'fn') exportFn(name, b.key);
+            else if (b?.kind === 'val') exports[name] = { val: b.val };
+            else if (b?.kind === 'imp') exports[name] = { val: { imp: b.imp, name: b.name, ...(b.path ? { path: b.path } : {}) } };
+          }
+        }
+        continue;
+      }
+      if (t.isExpressionStatement(st)) {
+        const ex = this.unwrap(st.expression);
+        if (t.isBinaryExpression(ex) && ex.operatorToken.kind === t.SyntaxKind.EqualsToken) {
+          const target = this.exportTarget(ex.left);
+          if (target === 'module') {
+            exportObject(ex.right, true);
+            continue;
+          }
+          if (target) {
+            exportValue(target, ex.right);
+            continue;
+          }
+        }
+      }
+      this.statement(st, scope, topStmts);
+    }
+
+    // compile what can run: up, the default export, the other exported functions (helpers); never down
+    for (const [name, entry] of Object.entries(exports)) {
+      if ('fn' in entry && name !== 'down') this.ensureFn(entry.fn);
+    }
+    const facts: KnexFacts = { fns: this.fns, exports, imports: this.imports };
+    const up = exports['up'];
+    if (up && 'fn' in up) facts.up = up.fn;
+    if (exports['down']) facts.down = true;
+    const fnExports = Object.entries(exports).filter(([n, x]) => 'fn' in x && n !== 'down');
+    const main = facts.up ?? (exports['default'] && 'fn' in exports['default'] ? exports['default'].fn : undefined) ?? (fnExports.length === 1 ? (fnExports[0]![1] as { fn: string }).fn : undefined);
+    if (main) facts.main = main;
+    if (topStmts.length > 0) facts.top = topStmts;
+    if (defaultVal !== undefined && looksLikeConfig(defaultVal)) facts.config = defaultVal;
+    if (reexports.length > 0) facts.reexports = reexports;
+    return facts;
+  }
+
+  /** `module.exports` -> 'module'; `exports.x` / `module.exports.x` -> 'x'; else null. */
+  private exportTarget(e0: Expression): string | null {
+    const t = this.t;
+    const e = this.unwrap(e0);
+    const text = (n: Expression): string | null => {
+      if (t.isIdentifier(n)) return n.text;
+      if (t.isPropertyAccessExpression(n)) {
+        const b = text(n.expression);
+        return b === null ? null : `${b}.${n.name.text}`;
+      }
+      return null;
+    };
+    const s = text(e);
+    if (s === 'module.exports') return 'module';
+    if (s && /^(module\.)?exports\.[A-Za-z_$][\w$]*$/.test(s)) return s.slice(s.lastIndexOf('.') + 1);
+    if (t.isElementAccessExpression(e) && t.isStringLiteral(e.argumentExpression)) {
+      const b = text(e.expression);
+      if (b === 'exports' || b === 'module.exports') return e.argumentExpression.text;
+    }
+    return null;
+  }
+}
+
+/** A value the parse could not know at all (an arbitrary expression). */
+export function isUnknown(v: Val): boolean {
+  return typeof v === 'object' && v !== null && 'expr' in v;
+}
+
+/** Concatenate values, folding adjacent literals. */
+export function concat(parts: Val[]): Val {
+  const out: Val[] = [];
+  for (const p of parts) {
+    if (typeof p === 'object' && p !== null && 'cat' in p) out.push(...p.cat);
+    else out.push(p);
+  }
+  const folded: Val[] = [];
+  for (const p of out) {
+    const last = folded[folded.length - 1];
+    if (isLiteral(p) && p !== null && last !== undefined && isLiteral(last) && last !== null) folded[folded.length - 1] = String(last) + String(p);
+    else folded.push(p);
+  }
+  if (folded.length === 1 && isLiteral(folded[0]!)) return String(folded[0]);
+  return { cat: folded };
+}
+
+/** Does a default export look like a Knex configuration (flat, or per environment)? */
+export function looksLikeConfig(v: Val): boolean {
+  if (!isObj(v)) return false;
+  if (v.obj.some(([k]) => CONFIG_KEYS.has(k))) return true;
+  return v.obj.some(([, x]) => isObj(x) && x.obj.some(([k]) => CONFIG_KEYS.has(k)));
+}
+
+/** Options of the parse: none yet; the facts depend on the text only. */
+export interface ParseResult {
+  ok: boolean;
+  facts?: KnexFacts;
+  diagnostics: Diagnostic[];
+}
+
+/**
+ * Parse one file's text (JavaScript or TypeScript, CommonJS or ESM; always with the TypeScript
+ * parser, so that the result depends on the text only) into its facts.
+ */
+export function parseKnexSource(text: string): FileFacts<KnexFacts> {
+  const t = ts();
+  const sf = t.createSourceFile('file.ts', text, t.ScriptTarget.Latest, false, t.ScriptKind.TS);
+  const parseDiagnostics = (sf as unknown as { parseDiagnostics?: Array<{ start?: number; messageText: unknown; category: number }> }).parseDiagnostics ?? [];
+  const errors = parseDiagnostics.filter((d) => d.category === t.DiagnosticCategory.Error);
+  if (errors.length > 0) {
+    const first = errors[0]!;
+    const pos = sf.getLineAndCharacterOfPosition(first.start ?? 0);
+    const msg = t.flattenDiagnosticMessageText(first.messageText as string, ' ');
+    return {
+      ok: false,
+      diagnostics: [{
+        severity: 'error', code: 'knex/syntax-error', line: pos.line + 1, column: pos.character + 1,
+        message: `syntax error: ${msg}${errors.length > 1 ? ` (and ${errors.length - 1} more)` : ''}`,
+      }],
+    };
+  }
+  try {
+    const facts = new FileCompiler(sf).compileFile();
+    return { ok: true, facts };
+  } catch (e) {
+    return { ok: false, diagnostics: [{ severity: 'error', code: 'knex/parse-failed', message: `could not read the file: ${(e as Error).message}` }] };
+  }
+}
+
+/** `parseFile` of the adapter: the facts of one file, by its text. */
+export function parseKnexFile(file: SourceFile): FileFacts<KnexFacts> {
+  return parseKnexSource(file.text);
+}
+
+export type { Arg, Call, Chain, Cond, FnIR, FnRef, KnexFacts, Root, Stmt, Val };

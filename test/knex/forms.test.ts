@@ -1,0 +1,138 @@
+// The ways a Knex migration can be written, each checked against Knex itself: every case is a
+// tiny project (a knexfile and its migrations) that Knex runs on SQLite (better-sqlite3) and the
+// adapter replays; the two schemas must agree. Module forms (CommonJS, ESM, functions, arrows,
+// methods), receivers of the builder, names from constants and imports, loops, conditions,
+// chains over statements, helpers, and builders that are never awaited (Knex never runs them).
+import { describe, expect, it } from 'vitest';
+import type { KnexFacts } from '@schema-strata/adapter-knex';
+import { replaySteps, tablesOf } from './fixture.js';
+import { runKnex } from './oracle.js';
+import { fromDatabase, fromReplay } from './compare.js';
+
+const KNEXFILE = "module.exports = { client: 'better-sqlite3', useNullAsDefault: true, migrations: { directory: './migrations', loadExtensions: ['.js', '.ts', '.mjs', '.cjs'] } };\n";
+
+const members = "t.increments('id');\n    t.string('name', 80).notNullable();";
+
+interface Case {
+  name: string;
+  files: Record<string, string>;
+  /** Diagnostic codes the replay must report. */
+  codes?: string[];
+}
+
+const CASES: Case[] = [
+  { name: 'exports.up = function', files: { 'migrations/001.js': `exports.up = function (knex) {\n  return knex.schema.createTable('members', function (t) {\n    ${members}\n  });\n};\nexports.down = function () {};\n` } },
+  { name: 'exports.up = arrow with an expression body', files: { 'migrations/001.js': `exports.up = (knex) => knex.schema.createTable('members', (t) => {\n    ${members}\n  });\nexports.down = () => {};\n` } },
+  { name: 'module.exports = { up() {} } (method)', files: { 'migrations/001.cjs': `module.exports = {\n  up(knex) {\n    return knex.schema.createTable('members', (t) => {\n    ${members}\n    });\n  },\n  down() {},\n};\n` } },
+  { name: 'module.exports = { up, down } (shorthand of local functions)', files: { 'migrations/001.js': `async function up(knex) {\n  await knex.schema.createTable('members', (t) => {\n    ${members}\n  });\n}\nconst down = async () => {};\nmodule.exports = { up, down };\n` } },
+  { name: 'module.exports.up and a hoisted function', files: { 'migrations/001.js': `module.exports.up = up;\nmodule.exports.down = () => {};\nfunction up(knex) {\n  return knex.schema.createTable('members', (t) => {\n    ${members}\n  });\n}\n` } },
+  { name: 'export async function up (TypeScript)', files: { 'migrations/001.ts': `import type { Knex } from 'knex';\nexport async function up(knex: Knex): Promise<void> {\n  await knex.schema.createTable('members', (t: Knex.CreateTableBuilder) => {\n    ${members}\n  });\n}\nexport async function down(): Promise<void> {}\n` } },
+  { name: 'export const up = arrow (ESM .mjs)', files: { 'migrations/001.mjs': `export const up = async (knex) => {\n  await knex.schema.createTable('members', (t) => {\n    ${members}\n  });\n};\nexport const down = async () => {};\n` } },
+  { name: 'export = { up, down } (TypeScript for module.exports)', files: { 'migrations/001.ts': `const up = async (knex: any) => {\n  await knex.schema.createTable('members', (t: any) => {\n    ${members}\n  });\n};\nconst down = async () => {};\nexport = { up, down };\n` } },
+  { name: 'export { up, down }', files: { 'migrations/001.ts': `const up = (knex: any) => knex.schema.createTable('members', (t: any) => {\n    ${members}\n  });\nfunction down() {}\nexport { up, down };\n` } },
+  {
+    name: 'receivers: an alias of knex, a destructured schema, a transaction, withSchema of the default schema',
+    files: {
+      'migrations/001.js': `exports.up = async (knex) => {\n  const db = knex;\n  const { schema } = knex;\n  const s = knex.schema;\n  await db.schema.createTable('a', (t) => { t.increments('id'); });\n  await schema.createTable('b', (t) => { t.increments('id'); });\n  await s.createTable('c', (t) => { t.increments('id'); });\n  await knex.transaction(async (trx) => {\n    await trx.schema.createTable('d', (t) => { t.increments('id'); });\n  });\n  await knex.schema.withSchema('main').createTable('e', (t) => { t.increments('id'); });\n};\nexports.down = () => {};\n`,
+    },
+  },
+  {
+    name: 'calls chained on one builder and spread over statements',
+    files: {
+      'migrations/001.js': `exports.up = async (knex) => {\n  await knex.schema.createTable('a', (t) => { t.increments('id'); }).createTable('b', (t) => {\n    t.increments('id');\n    const col = t.integer('a_id');\n    col.unsigned();\n    col.notNullable().references('id').inTable('a');\n  });\n};\nexports.down = () => {};\n`,
+    },
+  },
+  {
+    name: 'names from constants, templates, object members, an imported constant and loops over literal arrays',
+    files: {
+      'names.js': "module.exports = { TABLES: { tools: 'tools' }, PREFIX: 'coop' };\n",
+      'migrations/001.js': `const { TABLES, PREFIX } = require('../names');\nconst KINDS = ['hand', 'power'];\nconst FLAGS = { lent: 'boolean', broken: 'boolean' };\nexports.up = async (knex) => {\n  await knex.schema.createTable(TABLES.tools, (t) => {\n    t.increments('id');\n    for (const k of KINDS) t.string(\`\${k}_code\`, 10);\n    KINDS.forEach((k) => t.integer(k + '_count'));\n    for (const [name, type] of Object.entries(FLAGS)) t[type](name);\n  });\n  await Promise.all(['email', 'sms'].map((c) => knex.schema.createTable(\`\${PREFIX}_\${c}\`, (t) => { t.increments('id'); })));\n};\nexports.down = () => {};\n`,
+    },
+  },
+  {
+    name: 'hasTable and hasColumn conditions, in if statements and in then callbacks',
+    files: {
+      'migrations/001.js': `exports.up = async (knex) => {\n  await knex.schema.createTable('a', (t) => { t.increments('id'); });\n  if (!(await knex.schema.hasTable('a'))) {\n    await knex.schema.createTable('never', (t) => { t.increments('id'); });\n  } else {\n    await knex.schema.alterTable('a', (t) => { t.string('x'); });\n  }\n  const hasY = await knex.schema.hasColumn('a', 'y');\n  if (!hasY) await knex.schema.alterTable('a', (t) => { t.string('y'); });\n  await knex.schema.hasTable('b').then((exists) => {\n    if (!exists) return knex.schema.createTable('b', (t) => { t.increments('id'); });\n  });\n  await (knex.schema.hasColumn('a', 'x').then((x) => x && knex.schema.alterTable('a', (t) => { t.string('z'); })));\n};\nexports.down = () => {};\n`,
+    },
+  },
+  {
+    name: 'helpers: a local function, an imported function, this in a function callback',
+    files: {
+      'helpers.js': "exports.addStamp = function (t, knex) {\n  t.datetime('stamped_at').notNullable().defaultTo(knex.fn.now());\n};\n",
+      'migrations/001.ts': `import { addStamp } from '../helpers';\nfunction addOwner(t: any) {\n  t.integer('owner_id').unsigned();\n}\nexport async function up(knex: any) {\n  await knex.schema.createTable('kits', function (this: any) {\n    this.increments('id');\n    addOwner(this);\n    addStamp(this, knex);\n  });\n}\nexport async function down() {}\n`,
+    },
+  },
+  {
+    name: 'a builder that is neither awaited nor returned never runs',
+    files: {
+      'migrations/001.js': `exports.up = async function (knex) {\n  knex.schema.createTable('forgotten', (t) => { t.increments('id'); });\n  await knex.schema.createTable('kept', (t) => { t.increments('id'); });\n};\nexports.down = () => {};\n`,
+    },
+    codes: ['knex/not-awaited'],
+  },
+  {
+    name: 'table helpers of a models module, passed on by a spread of require() (a pattern seen in a real Knex application)',
+    files: {
+      'models/tool.model.js': "async function createToolTable(knex) {\n  if (!(await knex.schema.hasTable('tools'))) {\n    await knex.schema.createTable('tools', (t) => { t.increments('id'); t.string('name').notNullable(); });\n  }\n  const hasShelf = await knex.schema.hasColumn('tools', 'shelf');\n  if (!hasShelf) await knex.schema.alterTable('tools', (t) => { t.string('shelf', 10); });\n}\nmodule.exports = { createToolTable };\n",
+      'models/loan.model.js': "exports.createLoanTable = async (knex) => {\n  await knex.schema.createTable('loans', (t) => {\n    t.increments('id');\n    t.integer('tool_id').references('id').inTable('tools').notNullable().onDelete('CASCADE');\n  });\n};\n",
+      'models/index.js': "module.exports = {\n  ...require('./tool.model'),\n  ...require('./loan.model'),\n};\n",
+      'migrations/001_models.js': "const models = require('../models');\nasync function up(knex) {\n  await models.createToolTable(knex);\n  await models.createLoanTable(knex);\n}\nmodule.exports = { up, down: async () => {} };\n",
+    },
+  },
+  {
+    name: 'early return and a switch on a known value',
+    files: {
+      'migrations/001.js': "exports.up = (knex) => knex.schema.createTable('a', (t) => { t.increments('id'); });\nexports.down = () => {};\n",
+      'migrations/002.js': "const DB = 'sqlite';\nexports.up = async (knex) => {\n  await knex.schema.alterTable('a', (t) => {\n    switch (DB) {\n      case 'pg':\n        t.specificType('body', 'tsvector');\n        break;\n      case 'sqlite':\n      case 'mysql':\n        t.text('body');\n        break;\n      default:\n        t.string('body');\n    }\n  });\n  if (await knex.schema.hasTable('a')) return;\n  await knex.schema.createTable('never', (t) => { t.increments('id'); });\n};\nexports.down = () => {};\n",
+    },
+  },
+  {
+    // older Knex passed a Promise library as the second argument; Knex 3 passes none, hence the default
+    name: 'older style: up(knex, Promise) returning Promise.all of builders',
+    files: {
+      'migrations/001.js': "exports.up = function (knex, Promise = globalThis.Promise) {\n  return Promise.all([\n    knex.schema.createTable('a', function (t) { t.increments(); }),\n    knex.schema.createTable('b', function (t) { t.increments(); t.string('label'); }),\n  ]);\n};\nexports.down = function (knex, Promise) { return Promise.resolve(); };\n",
+    },
+  },
+  {
+    name: 'several migrations in file-name order, across JS and TS',
+    files: {
+      'migrations/20240102_b.ts': "export async function up(knex: any) { await knex.schema.alterTable('a', (t: any) => { t.renameColumn('x', 'y'); }); }\nexport async function down() {}\n",
+      'migrations/20240101_a.js': "exports.up = (knex) => knex.schema.createTable('a', (t) => { t.increments('id'); t.string('x'); });\nexports.down = () => {};\n",
+      'migrations/20240103_c.mjs': "export const up = (knex) => knex.schema.renameTable('a', 'aa');\nexport const down = () => {};\n",
+    },
+  },
+];
+
+describe('ways of writing a Knex migration (oracle: Knex 3 on better-sqlite3)', () => {
+  for (const c of CASES) {
+    it(c.name, async () => {
+      const tree = new Map<string, string>([['knexfile.js', KNEXFILE], ...Object.entries(c.files)]);
+      const oracle = await runKnex(tree, { engine: 'sqlite', environment: 'development' });
+      const steps = await replaySteps(tree, { 'knex-client': 'sqlite' });
+      const migrations = steps.filter((s) => s.role === 'migration');
+      expect(migrations.map((s) => s.path.slice(s.path.lastIndexOf('/') + 1))).toEqual(oracle.migrations);
+      const last = migrations[migrations.length - 1]!.snapshot;
+      expect(fromReplay(tablesOf(last), 'sqlite')).toEqual(fromDatabase(oracle.final, 'sqlite'));
+      expect(oracle.final.length).toBeGreaterThan(0);
+    });
+  }
+
+  it('export default { up, down } is no migration for Knex, nor for the replay', async () => {
+    const text = "const up = async (knex) => knex.schema.createTable('a', (t) => { t.increments('id'); });\nconst down = async () => {};\nexport default { up, down };\n";
+    const tree = new Map([['knexfile.js', KNEXFILE], ['migrations/001.mjs', text]]);
+    await expect(runKnex(tree, { engine: 'sqlite', environment: 'development' })).rejects.toThrow(/must have both an up and down function/);
+    const { KnexSession, knexOptions, parseKnexSource } = await import('@schema-strata/adapter-knex');
+    const files = [...tree.keys()].sort().map((path) => ({ path, blob: path, facts: (parseKnexSource(tree.get(path)!) as { facts: KnexFacts }).facts }));
+    const r = new KnexSession(knexOptions({})).assemble({ files, missing: [] });
+    expect('snapshot' in r && r.snapshot.tables).toEqual([]);
+    expect(r.diagnostics.map((d) => d.code)).toContain('knex/no-up');
+  });
+
+  it('reports what it leaves out', async () => {
+    const c = CASES.find((x) => x.codes)!;
+    const tree = new Map<string, string>([['knexfile.js', KNEXFILE], ...Object.entries(c.files)]);
+    const { KnexSession, knexOptions, parseKnexSource } = await import('@schema-strata/adapter-knex');
+    const files = [...tree.keys()].sort().map((path) => ({ path, blob: path, facts: (parseKnexSource(tree.get(path)!) as { facts: KnexFacts }).facts }));
+    const r = new KnexSession(knexOptions({})).assemble({ files, missing: [] });
+    expect('diagnostics' in r && r.diagnostics.map((d) => `${d.code}@${d.line}`)).toEqual(['knex/not-awaited@2']);
+  });
+});
