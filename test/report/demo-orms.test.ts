@@ -4,10 +4,10 @@ import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import type { Analysis, InterchangeDocument, TableMeasures } from '@schema-strata/core';
 import { runMain, tempDir } from '../helpers/repo.js';
 
-// The demo story (core's demoStory) told through the code of each ORM: Prisma schema files and
-// TypeORM entity classes (Knex migrations join when their adapter lands). The three analyses must agree wherever the ORMs allow;
+// The demo story (core's demoStory) told through the code of each ORM: Prisma schema files,
+// TypeORM entity classes, Knex migrations. The three analyses must agree wherever the ORMs allow;
 // where they cannot, the test names the difference and its reason.
-const ADAPTERS = ['prisma', 'typeorm'] as const;
+const ADAPTERS = ['prisma', 'typeorm', 'knex'] as const;
 type Adapter = (typeof ADAPTERS)[number];
 
 const { dir, cleanup } = tempDir('strata-demo-orms-');
@@ -54,12 +54,12 @@ const changes = (a: Adapter, values = true) =>
 describe('the demo in Prisma, TypeORM and Knex', () => {
   test('same tables, same measures, table by table', () => {
     const want = analyses.prisma.tables.map(measures);
-    for (const a of ['typeorm'] as const) expect(analyses[a].tables.map(measures), a).toEqual(want);
+    for (const a of ['typeorm', 'knex'] as const) expect(analyses[a].tables.map(measures), a).toEqual(want);
   });
 
   test('same changes, commit by commit, and the same figures', () => {
     expect(changes('typeorm'), 'typeorm').toEqual(changes('prisma'));
-    for (const a of ['typeorm'] as const) {
+    for (const a of ['typeorm', 'knex'] as const) {
       expect(changes(a, false), a).toEqual(changes('prisma', false));
       const s = analyses[a].summary;
       const p = analyses.prisma.summary;
@@ -69,7 +69,7 @@ describe('the demo in Prisma, TypeORM and Knex', () => {
   });
 
   test('the same statistics', () => {
-    for (const a of ['typeorm'] as const) {
+    for (const a of ['typeorm', 'knex'] as const) {
       for (const k of ['classByBirthGroup', 'classByActivityBand'] as const) {
         expect(analyses[a].statistics[k].table.counts, `${a} ${k}`).toEqual(analyses.prisma.statistics[k].table.counts);
         expect(analyses[a].statistics[k].reading, `${a} ${k}`).toEqual(analyses.prisma.statistics[k].reading);
@@ -83,31 +83,53 @@ describe('the demo in Prisma, TypeORM and Knex', () => {
     const statusOf = (a: Adapter, subject: string) => docs[a].versions.find((v) => v.subject === subject)?.status;
     const broken = () => docs.prisma.versions.find((v) => v.status === 'carried')!.subject;
 
-    test('the commit that does not parse: Prisma carries the whole schema, TypeORM loses only the broken file', () => {
+    test('the commit that does not parse: Prisma carries the whole schema, TypeORM and Knex lose only the broken file', () => {
       // a Prisma schema is parsed as one unit, so one syntax error fails it all (design.md: `carried`);
-      // entity classes are separate files, each keeping its last good parse (`partial`)
+      // entity classes and migrations are separate files, each keeping its last good parse (`partial`)
       expect(statusOf('prisma', broken())).toBe('carried');
       expect(statusOf('typeorm', broken())).toBe('partial');
-      expect(docs.typeorm.versions.length).toBe(docs.prisma.versions.length);
-      // every other commit has the same status in both, the class renamed while its table stays included (`no change`)
-      const others = (a: Adapter) => docs[a].versions.filter((v) => v.subject !== broken()).map((v) => `${v.subject}: ${v.status}`);
-      expect(others('typeorm')).toEqual(others('prisma'));
-      expect(others('prisma').filter((s) => s.endsWith('no change'))).toHaveLength(2);
+      expect(statusOf('knex', broken())).toBe('partial');
     });
 
+    test('every other commit has the same status in Prisma and TypeORM', () => {
+      const others = (a: Adapter) => docs[a].versions.filter((v) => v.subject !== broken()).map((v) => `${v.subject}: ${v.status}`);
+      expect(others('typeorm')).toEqual(others('prisma'));
+    });
 
+    test('the commit that renames a class but keeps its table: no change for Prisma and TypeORM, no version for Knex', () => {
+      // Knex migrations have no class to rename: the commit touches no file Knex reads, so it is no version at all
+      const renames = docs.prisma.versions.filter((v) => v.status === 'no change').map((v) => v.subject);
+      expect(renames.length).toBe(2);
+      const classRename = renames.find((s) => statusOf('knex', s) === undefined)!;
+      expect(classRename).toBeDefined();
+      expect(statusOf('typeorm', classRename)).toBe('no change');
+      expect(docs.knex.versions.length).toBe(docs.prisma.versions.length - 1);
+      expect(docs.typeorm.versions.length).toBe(docs.prisma.versions.length);
+    });
 
-    test('the many-to-many join table: created implicitly by both ORMs', () => {
+    test("unstated referential actions: Prisma's engine fills in its defaults, a Knex migration leaves them to the database", () => {
+      // Prisma 7 (its schema engine): onUpdate Cascade, onDelete Restrict for a required relation, when the
+      // schema states none; a Knex foreign key without .onDelete()/.onUpdate() has none (the database's NO ACTION)
+      const prismaWithoutDefaults = changes('prisma').map((c) => c.replace(/ on update cascade/g, '').replace(/ on delete restrict/g, ''));
+      expect(changes('knex')).toEqual(prismaWithoutDefaults.sort());
+      expect(changes('knex')).not.toEqual(changes('prisma'));
+    });
+
+    test('the many-to-many join table: created implicitly by Prisma and TypeORM, written out in a Knex migration', () => {
       const kinds = (a: Adapter) => analyses[a].tables.filter((t) => t.kind === 'implicit-join').map((t) => t.id);
       expect(kinds('prisma')).toEqual(['_TagToTool']);
       expect(kinds('typeorm')).toEqual(['_TagToTool']);
+      expect(kinds('knex')).toEqual([]);
+      expect(analyses.knex.tables.find((t) => t.id === '_TagToTool')!.kind).toBe('table');
     });
 
     test('coverage: each adapter counts what it could not read in its own terms', () => {
       const codes = (a: Adapter) => new Set(docs[a].versions.flatMap((v) => v.diagnostics.map((d) => d.code.split('/')[0])));
       expect(codes('prisma')).toContain('prisma');
       expect(codes('typeorm')).toContain('typeorm');
-      expect(docs.typeorm.versions.at(-1)!.counters).toMatchObject({ entities: 14, joinTables: 1 });
+      expect(codes('knex')).toContain('knex');
+      // the Knex story carries one raw SQL statement (a raw schema statement it cannot replay)
+      expect(docs.knex.versions.at(-1)!.counters.rawSchemaStatements).toBe(1);
     });
   });
 });
