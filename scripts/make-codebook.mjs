@@ -8,6 +8,8 @@ const root = new URL('../', import.meta.url);
 const schema = JSON.parse(readFileSync(new URL('packages/core/schema/history.schema.json', root), 'utf8'));
 const csvPath = new URL('packages/core/schema/csv-fields.json', root);
 const csv = existsSync(csvPath) ? JSON.parse(readFileSync(csvPath, 'utf8')) : null;
+const graphPath = new URL('packages/core/schema/graph-fields.json', root);
+const graphFields = existsSync(graphPath) ? JSON.parse(readFileSync(graphPath, 'utf8')) : null;
 
 const defs = schema.$defs ?? {};
 const typeOf = (s) => {
@@ -23,7 +25,7 @@ const typeOf = (s) => {
 };
 const esc = (s) => String(s ?? '').replace(/\|/g, '\\|').replace(/\n/g, ' ');
 
-const out = ['# Codebook', '', 'Every field of the files schema-strata writes. Generated from the JSON Schema\n(`packages/core/schema/history.schema.json`) by `node scripts/make-codebook.mjs`; do not edit by hand.', ''];
+const out = ['# Codebook', '', 'Every field of the files schema-strata writes. Generated from the JSON Schema\n(`packages/core/schema/history.schema.json`), `csv-fields.json` and `graph-fields.json` by `node scripts/make-codebook.mjs`; do not edit by hand.', ''];
 const table = (title, s) => {
   out.push(`## ${title}`, '', esc(s.description), '');
   if (!s.properties) return;
@@ -59,6 +61,14 @@ if (csv) {
   for (const [file, spec] of Object.entries(csv.files ?? {})) {
     out.push(`## ${file}`, '', esc(spec.description), '', '| column | type | meaning |', '|---|---|---|');
     for (const c of spec.columns) out.push(`| \`${c.name}\` | ${esc(c.type)} | ${esc(c.description)} |`);
+    out.push('');
+  }
+}
+if (graphFields) {
+  out.push('# The graph exports (GEXF, GraphML, DOT)', '', esc(graphFields.description), '');
+  for (const [owner, title] of [['node', 'Node attributes'], ['edge', 'Edge attributes']]) {
+    out.push(`## ${title}`, '', '| attribute | type | meaning |', '|---|---|---|');
+    for (const a of graphFields[owner]) out.push(`| \`${a.name}\` | ${esc(a.type)} | ${esc(a.description)} |`);
     out.push('');
   }
 }

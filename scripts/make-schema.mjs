@@ -383,3 +383,9 @@ if (existsSync(csvModule)) {
   console.error('packages/core/dist is missing: run `npx tsc -b packages/core` first to write packages/core/schema/csv-fields.json');
   process.exitCode = 1;
 }
+// The attributes of the graph exports (GEXF, GraphML, DOT), for the codebook, from their writers.
+const graphModule = new URL('../packages/core/dist/writers/graph/records.js', import.meta.url);
+if (existsSync(graphModule)) {
+  const { graphFieldsDocument } = await import(graphModule.href);
+  writeFileSync(new URL('../packages/core/schema/graph-fields.json', import.meta.url), JSON.stringify(graphFieldsDocument(), null, 2) + '\n');
+}

@@ -69,3 +69,9 @@ export { analyseStudy, type StudyAnalysis, type ProjectRow, type StudyProject, t
 export { cochranMantelHaenszel, type Stratum, type StratifiedResult } from './study/stratified.js';
 export { buildStudy, writeStudy, loadStudy, STUDY_FORMAT_NAME, STUDY_FORMAT_VERSION, type StudyDocument, type StudyProjectEntry } from './study/study-document.js';
 export { studyTablesCsv, studyProjectsCsv, studyCsvFields, STUDY_TABLE_COLUMNS, PROJECT_COLUMNS } from './study/study-csv.js';
+export { gexfFile, GEXF_TIMES, type GexfTime } from './writers/gexf/index.js';
+export { graphmlFile } from './writers/graphml/index.js';
+export { dotFile } from './writers/dot/index.js';
+export { graphRecords, graphFieldsDocument, NODE_ATTRIBUTES, EDGE_ATTRIBUTES, type GraphAttribute, type ExportEdge } from './writers/graph/records.js';
+// ---- report
+export { buildReport, renderReport, reportData, layoutGraph, layoutIterations, renderSvg, scopeIds, CLASS_COLOURS, HEAT_SCALE, type ReportOptions, type ReportData, type LifetimeRow, type GraphNode, type GraphLink, type Placed } from './report/index.js';

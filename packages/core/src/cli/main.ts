@@ -11,9 +11,10 @@ import { registerAdapters } from './adapters-command.js';
 import { registerAnalyze } from './analyze-command.js';
 import { registerDiff } from './diff-command.js';
 import { registerExport } from './export-command.js';
+import { registerReport } from './report-command.js';
 
 /** Commands that other modules of core add (analysis, writers), registered in order. */
-export const commandRegistry: Array<(program: Command, io: CliIO, setCode: (c: number) => void) => void> = [registerAnalyze, registerExport];
+export const commandRegistry: Array<(program: Command, io: CliIO, setCode: (c: number) => void) => void> = [registerAnalyze, registerExport, registerReport];
 
 const EXIT_CODES_HELP = `
 Exit codes:

@@ -50,7 +50,8 @@ const addRelation = (model: string, r: DemoRelation): Edit => (s) => {
   find(s, model).relations.push(r);
 };
 const addTable = (t: DemoTable): Edit => (s) => {
-  s.tables.push(t);
+  // a copy: later edits change the schema's tables, and the story is told afresh at every call
+  s.tables.push(structuredClone(t));
 };
 const dropTable = (model: string): Edit => (s) => {
   s.tables = s.tables.filter((t) => t.model !== model);

@@ -1,0 +1,1 @@
+export { dotFile } from './dot-writer.js';

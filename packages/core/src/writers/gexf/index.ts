@@ -1,0 +1,1 @@
+export { gexfFile, GEXF_TIMES, type GexfTime } from './gexf-writer.js';

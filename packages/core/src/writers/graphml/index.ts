@@ -1,0 +1,1 @@
+export { graphmlFile } from './graphml-writer.js';
