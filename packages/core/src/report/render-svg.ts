@@ -1,7 +1,12 @@
-import { Error as VegaError, parse, View } from 'vega';
-import { compile, type TopLevelSpec } from 'vega-lite';
+import type { TopLevelSpec, compile as CompileFn } from 'vega-lite';
 
-type LoggerInterface = NonNullable<NonNullable<Parameters<typeof compile>[1]>['logger']>;
+type LoggerInterface = NonNullable<NonNullable<Parameters<typeof CompileFn>[1]>['logger']>;
+
+// Vega and Vega-Lite are loaded when the first chart is rendered, not when the CLI starts
+// (together they take about half a second to load).
+let libs: Promise<[typeof import('vega'), typeof import('vega-lite')]> | null = null;
+const loadLibs = (): Promise<[typeof import('vega'), typeof import('vega-lite')]> =>
+  (libs ??= Promise.all([import('vega'), import('vega-lite')]));
 import { CHART_CONFIG } from './charts/theme.js';
 
 /**
@@ -12,9 +17,10 @@ import { CHART_CONFIG } from './charts/theme.js';
  * the chart alone and ids stay unique among the charts of one page.
  */
 export async function renderSvg(spec: TopLevelSpec, prefix: string, warnings: string[] = []): Promise<string> {
+  const [vega, vegaLite] = await loadLibs();
   const logger = collectingLogger(warnings);
-  const compiled = compile(spec, { config: CHART_CONFIG, logger }).spec;
-  const view = new View(parse(compiled), { renderer: 'none', logLevel: VegaError });
+  const compiled = vegaLite.compile(spec, { config: CHART_CONFIG, logger }).spec;
+  const view = new vega.View(vega.parse(compiled), { renderer: 'none', logLevel: vega.Error });
   try {
     return scopeIds(await view.toSVG(), prefix);
   } finally {

@@ -1,6 +1,20 @@
-import betainc from '@stdlib/math-base-special-betainc';
-import gammainc from '@stdlib/math-base-special-gammainc';
-import gammaln from '@stdlib/math-base-special-gammaln';
+import { createRequire } from 'node:module';
+
+// @stdlib's special functions are loaded on first use, not when the CLI starts (their many
+// small modules take a few hundred milliseconds to load).
+const require = createRequire(import.meta.url);
+type Betainc = typeof import('@stdlib/math-base-special-betainc');
+type Gammainc = typeof import('@stdlib/math-base-special-gammainc');
+type Gammaln = typeof import('@stdlib/math-base-special-gammaln');
+let fns: { betainc: Betainc; gammainc: Gammainc; gammaln: Gammaln } | null = null;
+function special(): { betainc: Betainc; gammainc: Gammainc; gammaln: Gammaln } {
+  fns ??= {
+    betainc: require('@stdlib/math-base-special-betainc') as Betainc,
+    gammainc: require('@stdlib/math-base-special-gammainc') as Gammainc,
+    gammaln: require('@stdlib/math-base-special-gammaln') as Gammaln,
+  };
+  return fns;
+}
 
 /**
  * Upper tail of the chi-square distribution, P(X >= x) for `df` degrees of freedom: the
@@ -9,7 +23,7 @@ import gammaln from '@stdlib/math-base-special-gammaln';
  */
 export function chiSquareUpperTail(x: number, df: number): number {
   if (x <= 0) return 1;
-  return gammainc(x / 2, df / 2, true, true);
+  return special().gammainc(x / 2, df / 2, true, true);
 }
 
 /**
@@ -18,12 +32,13 @@ export function chiSquareUpperTail(x: number, df: number): number {
  */
 export function tTwoSidedTail(t: number, df: number): number {
   if (!Number.isFinite(t)) return 0;
-  return betainc(df / (df + t * t), df / 2, 0.5, true, false);
+  return special().betainc(df / (df + t * t), df / 2, 0.5, true, false);
 }
 
 /** ln(k!) for k = 0..n, as a table. */
 export function logFactorials(n: number): Float64Array {
   const out = new Float64Array(n + 1);
+  const { gammaln } = special();
   for (let k = 2; k <= n; k++) out[k] = gammaln(k + 1);
   return out;
 }

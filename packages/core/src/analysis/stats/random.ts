@@ -1,10 +1,14 @@
-import mt19937 from '@stdlib/random-base-mt19937';
+import { createRequire } from 'node:module';
+
+const require = createRequire(import.meta.url);
+type Mt19937 = typeof import('@stdlib/random-base-mt19937');
 
 /** A seeded source of uniform integers (32-bit Mersenne Twister, as R and numpy's legacy generator use). */
 export class SeededRandom {
   private readonly next: () => number;
   constructor(readonly seed: number) {
-    this.next = mt19937.factory({ seed });
+    // loaded on first use, not when the CLI starts
+    this.next = (require('@stdlib/random-base-mt19937') as Mt19937).factory({ seed });
   }
 
   /** A uniform integer in [0, n), without modulo bias (draws above the last whole multiple of n are redrawn). */
