@@ -32,6 +32,8 @@ export interface ExtractOptions {
   config?: string;
   quiet?: boolean;
   strict?: boolean;
+  /** The commit `ref` resolves to, when the caller has just checked the repository (not a flag). */
+  resolvedHead?: string;
   [k: string]: unknown;
 }
 
@@ -46,6 +48,7 @@ export async function runExtract(repo: string, opts: ExtractOptions, io: CliIO):
     const history = await extractHistory({
       repo,
       ref: opts.ref,
+      ...(opts.resolvedHead ? { resolvedHead: opts.resolvedHead } : {}),
       since: opts.since,
       until: opts.until,
       paths: opts.path,

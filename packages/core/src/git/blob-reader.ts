@@ -23,6 +23,8 @@ export class BlobReader {
   private child: ChildProcessWithoutNullStreams | null = null;
   private queue: Pending[] = [];
   private buf: Buffer = Buffer.alloc(0);
+  /** Commands not yet written to git's standard input. */
+  private outgoing = '';
   private readonly cache = new Map<string, Promise<BlobRead>>();
   private failed: Error | null = null;
   /** Distinct blobs whose contents were read from git. */
@@ -62,8 +64,17 @@ export class BlobReader {
     const child = this.start();
     return new Promise((resolve, reject) => {
       this.queue.push({ type, resolve, reject });
-      child.stdin.write(`${type} ${id}\n`);
+      // the commands asked in one turn go to git in one write (a write per command costs more
+      // than the reading); answers come back in the same order either way
+      if (this.outgoing === '') queueMicrotask(() => this.flush(child));
+      this.outgoing += `${type} ${id}\n`;
     });
+  }
+
+  private flush(child: ChildProcessWithoutNullStreams): void {
+    const text = this.outgoing;
+    this.outgoing = '';
+    if (text && child.stdin.writable) child.stdin.write(text);
   }
 
   private onData(b: Buffer): void {
@@ -128,6 +139,7 @@ export class BlobReader {
 
   close(): void {
     if (this.child) {
+      this.flush(this.child);
       this.child.stdin.end();
       this.child = null;
     }

@@ -19,6 +19,13 @@ export async function openRepository(path: string, ref = 'HEAD'): Promise<RepoIn
   if (!existsSync(path) || !statSync(path).isDirectory()) {
     throw new UsageError(`${path}: no such directory`, EXIT.failure);
   }
+  // the usual case in one git process (each process costs a fork of this one); the failures
+  // are told apart by the separate questions below
+  const quick = await runGit(path, ['rev-parse', '--is-shallow-repository', '--verify', '--quiet', '--end-of-options', `${ref}^{commit}`]);
+  if (quick.code === 0) {
+    const [shallow, head] = quick.stdout.trim().split('\n');
+    if (shallow === 'false' && head && /^[0-9a-f]{40,64}$/.test(head)) return { path, head, ref };
+  }
   const probe = await runGit(path, ['rev-parse', '--git-dir', '--is-shallow-repository']);
   if (probe.code !== 0) {
     throw new UsageError(`${path} is not a git repository (git says: ${firstLine(probe.stderr)})`, EXIT.failure);

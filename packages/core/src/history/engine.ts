@@ -48,6 +48,11 @@ export interface VersionRecord {
 export interface ExtractRequest {
   repo: string;
   ref?: string;
+  /**
+   * The commit `ref` resolved to, when the caller has just opened the repository: the run reads
+   * that commit (so what it extracts is what the caller keyed) and skips checking again.
+   */
+  resolvedHead?: string;
   since?: string;
   until?: string;
   /** `--path` entries: files, directories or globs, relative to the repository root. */
@@ -150,7 +155,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
   const { adapter } = req;
   const options = req.adapterOptions ?? {};
   const ref = req.ref ?? 'HEAD';
-  const repo = await openRepository(req.repo, ref);
+  const repo = req.resolvedHead ? { path: req.repo, head: req.resolvedHead, ref } : await openRepository(req.repo, ref);
   const progress = req.progress;
   const maxBytes = req.maxFileBytes ?? DEFAULT_MAX_FILE_BYTES;
 

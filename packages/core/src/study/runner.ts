@@ -162,7 +162,7 @@ export async function runRepository(job: RepositoryJob): Promise<RepositoryOutco
     }
     // the analysis embeds itself as in `extract --analyze` (the same step; registered once)
     if (!extractHooks.includes(extractStep)) extractHooks.push(extractStep);
-    const { doc, errors } = await runExtract(location, { ...opts, adapter: loaded.source }, silentIO());
+    const { doc, errors } = await runExtract(location, { ...opts, adapter: loaded.source, resolvedHead: head }, silentIO());
     // the file names the repository as the corpus wrote it, never the clone cache
     doc.source.repository = entry.repository;
     const text = serialiseDocument(doc);

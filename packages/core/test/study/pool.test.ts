@@ -1,10 +1,10 @@
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
-import { ProcessPool } from '../../src/study/pool.js';
+import { childFlags, ProcessPool } from '../../src/study/pool.js';
 
 const CHILD = fileURLToPath(new URL('./fixtures/echo-child.mjs', import.meta.url));
 type Job = { action: 'ok' | 'fail' | 'die'; value: number; ms?: number };
-type Result = { value: number; pid: number };
+type Result = { value: number; pid: number; flags: string[] };
 
 describe('the process pool of a study', () => {
   it('runs every job once, at most `size` at once, in long-lived children', async () => {
@@ -51,5 +51,21 @@ describe('the process pool of a study', () => {
     expect(r.value).toBe(1);
     expect(() => process.kill(r.pid, 0)).toThrow();
     await expect(pool.run({ action: 'ok', value: 3 })).rejects.toThrow('the pool is closed');
+  });
+
+  it('children of a pool as large as the machine run single-threaded; a smaller pool leaves them their threads', async () => {
+    expect(childFlags(2, 2)).toEqual(['--single-threaded']);
+    expect(childFlags(3, 2)).toEqual(['--single-threaded']);
+    expect(childFlags(1, 2)).toEqual([]);
+    expect(childFlags(1, 1)).toEqual(['--single-threaded']);
+    // what the children were started with, as they see it themselves
+    const big = new ProcessPool<Job, Result>(64, CHILD);
+    const fromBig = await Promise.all([1, 2].map((value) => big.run({ action: 'ok', value })));
+    await big.close();
+    for (const r of fromBig) expect(r.flags).toEqual(['--single-threaded']);
+    const one = new ProcessPool<Job, Result>(1, CHILD);
+    const fromOne = await one.run({ action: 'ok', value: 3 });
+    await one.close();
+    expect(fromOne.flags).toEqual(childFlags(1));
   });
 });
