@@ -94,34 +94,66 @@ function history(): ScriptedCommit[] {
   return commits;
 }
 
-let dir: string;
-afterAll(() => rmSync(dir, { recursive: true, force: true }));
+/** Check every version of a run against a fresh assembly of that version's files. */
+async function checkAgainstFresh(commits: ScriptedCommit[], minVersions: number): Promise<void> {
+  const repo = mkdtempSync(join(tmpdir(), 'strata-typeorm-incremental-'));
+  dirs.push(repo);
+  await writeRepository(repo, commits, { checkout: false });
+  const h = await extractHistory({ repo, adapter: typeormAdapter });
+  const ids = execFileSync('git', ['-C', repo, 'rev-list', '--reverse', 'main'], { encoding: 'utf8' }).trim().split('\n');
+  const trees = new Map<string, Record<string, string>>();
+  const tree: Record<string, string> = {};
+  commits.forEach((c, i) => {
+    for (const [p, t] of Object.entries(c.files)) {
+      if (t === null) delete tree[p];
+      else tree[p] = t;
+    }
+    trees.set(ids[i]!, { ...tree });
+  });
+  const canon = (t: object): string =>
+    JSON.stringify(t, (k, v) => (k === 'origin' || k === 'id' ? undefined : v && typeof v === 'object' && Array.isArray(v) && (k === 'foreignKeys' || k === 'uniques') ? [...v].map((x) => JSON.stringify(x)).sort() : v));
+  expect(h.versions.length).toBeGreaterThanOrEqual(minVersions);
+  for (const v of h.versions) {
+    const fresh = await runAdapter(trees.get(v.commit)!);
+    const ours = h.snapshots.get(v.snapshot!)!.tables.map((t) => canon(t.table)).sort();
+    expect(ours, `version ${v.index} (${v.subject})`).toEqual(fresh.snapshot!.tables.map(canon).sort());
+    const codes = (list: Array<{ code: string; message: string }>): string[] => list.map((d) => `${d.code} ${d.message}`).sort();
+    expect(codes(v.diagnostics.filter((d) => d.code.startsWith('typeorm/')))).toEqual(codes(fresh.diagnostics.filter((d) => d.code.startsWith('typeorm/'))));
+  }
+}
+
+/** A single-table parent whose own files stay the same while the entity it references changes. */
+function singleTableHistory(): ScriptedCommit[] {
+  const shed = (key: string): string =>
+    `import { Entity, PrimaryColumn, PrimaryGeneratedColumn, Column } from 'typeorm';\n\n@Entity()\nexport class Shed {\n  ${key}\n  @Column()\n  name: string;\n}\n`;
+  const tool = [
+    "import { ChildEntity, Column, Entity, ManyToOne, PrimaryGeneratedColumn, TableInheritance } from 'typeorm';",
+    "import { Shed } from './shed';",
+    '',
+    "@Entity()\n@TableInheritance({ column: { type: 'varchar', name: 'kind' } })",
+    'export class Tool {\n  @PrimaryGeneratedColumn()\n  id: number;\n  @Column()\n  name: string;\n  @ManyToOne(() => Shed)\n  shed: Shed;\n}',
+    '',
+    '@ChildEntity()\nexport class PowerTool extends Tool {\n  @Column()\n  voltage: number;\n}',
+    '',
+  ].join('\n');
+  return [
+    { date: '2024-02-01T10:00:00+00:00', message: 'tools in sheds', files: { 'src/shed.ts': shed('@PrimaryGeneratedColumn()\n  id: number;'), 'src/tool.ts': tool } },
+    { date: '2024-02-02T10:00:00+00:00', message: 'sheds keyed by code', files: { 'src/shed.ts': shed('@PrimaryColumn({ length: 12 })\n  id: string;') } },
+    { date: '2024-02-03T10:00:00+00:00', message: 'sheds keyed by uuid', files: { 'src/shed.ts': shed("@PrimaryGeneratedColumn('uuid')\n  id: string;") } },
+  ];
+}
+
+const dirs: string[] = [];
+afterAll(() => {
+  for (const d of dirs) rmSync(d, { recursive: true, force: true });
+});
 
 describe('the assembly of a run', () => {
   it('gives at every version what a fresh assembly gives', async () => {
-    dir = mkdtempSync(join(tmpdir(), 'strata-typeorm-incremental-'));
-    const commits = history();
-    await writeRepository(dir, commits, { checkout: false });
-    const h = await extractHistory({ repo: dir, adapter: typeormAdapter });
-    const ids = execFileSync('git', ['-C', dir, 'rev-list', '--reverse', 'main'], { encoding: 'utf8' }).trim().split('\n');
-    const trees = new Map<string, Record<string, string>>();
-    const tree: Record<string, string> = {};
-    commits.forEach((c, i) => {
-      for (const [p, t] of Object.entries(c.files)) {
-        if (t === null) delete tree[p];
-        else tree[p] = t;
-      }
-      trees.set(ids[i]!, { ...tree });
-    });
-    const canon = (t: object): string =>
-      JSON.stringify(t, (k, v) => (k === 'origin' || k === 'id' ? undefined : v && typeof v === 'object' && Array.isArray(v) && (k === 'foreignKeys' || k === 'uniques') ? [...v].map((x) => JSON.stringify(x)).sort() : v));
-    expect(h.versions.length).toBeGreaterThan(40);
-    for (const v of h.versions) {
-      const fresh = await runAdapter(trees.get(v.commit)!);
-      const ours = h.snapshots.get(v.snapshot!)!.tables.map((t) => canon(t.table)).sort();
-      expect(ours, `version ${v.index} (${v.subject})`).toEqual(fresh.snapshot!.tables.map(canon).sort());
-      const codes = (list: Array<{ code: string; message: string }>): string[] => list.map((d) => `${d.code} ${d.message}`).sort();
-      expect(codes(v.diagnostics.filter((d) => d.code.startsWith('typeorm/')))).toEqual(codes(fresh.diagnostics.filter((d) => d.code.startsWith('typeorm/'))));
-    }
+    await checkAgainstFresh(history(), 41);
   }, 120_000);
+
+  it('keeps the children of a single-table parent that is built again for the entity it references', async () => {
+    await checkAgainstFresh(singleTableHistory(), 3);
+  }, 60_000);
 });
