@@ -1454,6 +1454,11 @@ class Builder {
         this.reused.delete(old);
         this.cache.entities.delete(old.key);
         this.nameOne(ent);
+        // a single-table parent keeps its children (the entity set is the same, so are they)
+        if (old.sti) {
+          ent.sti = true;
+          ent.tree = [...old.tree];
+        }
         for (const r of this.entities) if (r.parent === old) r.parent = ent;
         fresh.add(ent);
         rebuiltKeys.add(ent.key);
