@@ -121,7 +121,57 @@ interface EntMeta {
   keyedByRelation?: boolean;
   /** Its part of the entity set's fingerprint. */
   setSig?: string;
+  /** Diagnostics of its ancestors' reading, of its phase A, and of its whole build (phase B, with A's). */
+  ancDiags?: DiagList;
+  phaseADiags?: DiagList;
+  resultDiags?: DiagList;
+  /** Its tables, once built. */
+  tables?: TableInput[];
+  /** The ids of the tables of the entity it replaced (to tell whether duplicate tables can have changed). */
+  prevIds?: string;
 }
+
+type DiagList = Array<[string, Diagnostic]>;
+const NO_DIAGS: DiagList = [];
+const NO_KEYS: ReadonlySet<string> = new Set();
+
+interface Candidate {
+  a: TargetArgs;
+  schemaFactKey?: string;
+}
+
+/** What the collection of a version found (see `collectEntities`), aligned lists. */
+interface Collected {
+  /** Files that declare classes or schemas, in path order, and their candidates. */
+  files: string[];
+  lists: Array<Tracked<Candidate[]>>;
+  /** Every candidate, in order; its entity meta (when selected and relational) or its MongoDB diagnostic. */
+  cands: Candidate[];
+  candEnts: Array<EntMeta | undefined>;
+  candMongo: Array<DiagList | undefined>;
+  /** Diagnostics of single-table inheritance and of duplicate tables. */
+  structure: DiagList;
+}
+
+/**
+ * A version's entity set and the parts of its output, kept for the next version: when that
+ * version's changes leave the set as it is (the same candidates, names and inheritance), it
+ * patches the frame in place instead of collecting again.
+ */
+interface Frame extends Collected {
+  fileAt: Map<string, number>;
+  /** Candidate position by key; undefined when two candidates share a key (then nothing is patched). */
+  candAt?: Map<string, number>;
+  /** Entity metas that are not built (views, single-table children, duplicates): their ancestors are checked at every version. */
+  unbuilt: EntMeta[];
+  /** Keys of the entities of a duplicate-table pair. */
+  dupKeys: Set<string>;
+  dedupe: DiagList;
+  views: NonNullable<SnapshotInput['views']>;
+}
+
+const tableIds = (tables: readonly TableInput[] | undefined): string => (tables ?? []).map((x) => (x.namespace ? `${x.namespace}.${x.name}` : x.name)).join('\u0000');
+const setSigOf = (e: EntMeta): string => JSON.stringify([e.key, e.kind, e.targetName, e.tableName, e.schema, e.database, e.parent?.key, e.sti, e.args.tree?.type]);
 
 const ACTIONS: Record<string, ReferentialAction> = {
   CASCADE: 'cascade', RESTRICT: 'restrict', 'NO ACTION': 'no action', 'SET NULL': 'set null', 'SET DEFAULT': 'set default', DEFAULT: 'set default',
@@ -148,8 +198,10 @@ export class AssemblyCache {
   readonly ancestors = new Map<string, Tracked<string[]>>();
   readonly schemas = new Map<string, Tracked<TargetArgs | undefined>>();
   readonly entities = new Map<string, { ent: EntMeta; result: Tracked<TableInput[]>; targets: Map<string, string> }>();
+  /** Target key to the entities whose stored tables used it (the keys of their `targets`). */
+  readonly targetUsers = new Map<string, Set<string>>();
   /** Entity classes and schemas each file declares (with their arguments). */
-  readonly fileCandidates = new Map<string, Tracked<Array<{ a: TargetArgs; schemaFactKey?: string }>>>();
+  readonly fileCandidates = new Map<string, Tracked<Candidate[]>>();
   readonly classByKey = new Map<string, { file: string; cls: ClassFact }>();
   sortedPaths: string[] = [];
   configFiles: string[] = [];
@@ -160,12 +212,48 @@ export class AssemblyCache {
   dirtyFiles: Set<string> | null = null;
   dirtyEntities: Set<string> | null = null;
 
-  index(map: Map<string, Set<string>>, t: Tracked<unknown>, key: string): void {
+  /** Index a result under the paths it read, in place of the result it replaces. */
+  index(map: Map<string, Set<string>>, t: Tracked<unknown>, key: string, replaced?: Tracked<unknown>): void {
+    if (replaced) for (const d of replaced.deps.keys()) if (!t.deps.has(d)) map.get(d)?.delete(key);
     for (const d of t.deps.keys()) {
       let set = map.get(d);
       if (!set) map.set(d, (set = new Set()));
       set.add(key);
     }
+  }
+
+  /** Keep an entity's tables, with the paths they read and the targets they used. */
+  setEntity(ent: EntMeta, result: Tracked<TableInput[]>, targets: Map<string, string>): void {
+    const old = this.entities.get(ent.key);
+    this.dropTargets(ent.key, old?.targets);
+    this.entities.set(ent.key, { ent, result, targets });
+    this.index(this.entityIndex, result, ent.key, old?.result);
+    for (const k of targets.keys()) {
+      const hash = k.indexOf('\u0001');
+      const tk = hash < 0 ? k : k.slice(0, hash);
+      let set = this.targetUsers.get(tk);
+      if (!set) this.targetUsers.set(tk, (set = new Set()));
+      set.add(ent.key);
+    }
+  }
+
+  dropEntity(key: string): void {
+    const old = this.entities.get(key);
+    if (!old) return;
+    this.dropTargets(key, old.targets);
+    this.entities.delete(key);
+  }
+
+  private dropTargets(key: string, targets: Map<string, string> | undefined): void {
+    for (const k of targets?.keys() ?? []) {
+      const hash = k.indexOf('\u0001');
+      this.targetUsers.get(hash < 0 ? k : k.slice(0, hash))?.delete(key);
+    }
+  }
+
+  clearEntities(): void {
+    this.entities.clear();
+    this.targetUsers.clear();
   }
 
   /** Mark what the changed paths reach, through the indexes. */
@@ -186,9 +274,9 @@ export class AssemblyCache {
   }
 
   version = 0;
-  previous = new Map<string, TypeormFileFacts>();
 
   clear(): void {
+    this.targetUsers.clear();
     this.candidateIndex.clear();
     this.entityIndex.clear();
     this.dirtyFiles = null;
@@ -211,11 +299,17 @@ class Builder {
   mapped!: MappedTypes;
   entities: EntMeta[] = [];
   private readonly entityByKey = new Map<string, EntMeta>();
-  /** Entities reused from the previous version (their tables are the same objects). */
+  /** Position of each entity in `entities` (undefined when two entities share a key). */
+  private entAt: Map<string, number> | undefined;
+  /** Entities taken over from the previous version in a full collection (their tables are the same objects). */
   readonly reused = new Set<EntMeta>();
+  /** The entities built in this version (the others' tables are taken over). */
+  private fresh = new Set<EntMeta>();
   private readonly phaseA = new Map<EntMeta, Tracked<void>>();
   private readonly schemaArgs = new Map<string, TargetArgs>();
   private readonly closureMemo = new Map<EntMeta, Tracked<void>>();
+  /** The data source, read with what it read (see `readDataSource`). */
+  dsResult?: Tracked<{ failed?: Diagnostic }>;
 
   /** Signatures of the targets the entity in phase B has used so far. */
   private targetsUsed: Map<string, string> | null = null;
@@ -224,19 +318,23 @@ class Builder {
   constructor(files: Map<string, TypeormFileFacts>, readonly settings: TypeormSettings, readonly cache: AssemblyCache, delta?: VersionDelta) {
     this.project = new Project(files, delta);
     this.reader = new DecoratorReader(this.project, settings);
-    // classes by key, kept by the run and brought up to date for the files that changed
     this.classByKey = cache.classByKey;
-    const changed = delta && delta.version > 1 ? delta.changed : null;
-    if (!changed) {
-      this.classByKey.clear();
-      for (const [file, facts] of files) for (const c of facts.classes) this.classByKey.set(classKey(file, c.name), { file, cls: c });
-    } else {
-      for (const file of changed) {
-        const before = cache.previous.get(file);
-        for (const c of before?.classes ?? []) this.classByKey.delete(classKey(file, c.name));
-        for (const c of files.get(file)?.classes ?? []) this.classByKey.set(classKey(file, c.name), { file, cls: c });
-      }
-    }
+  }
+
+  /** Move to the next version (the builder lives as long as the paths and configuration files stay the same). */
+  advance(files: Map<string, TypeormFileFacts>, delta: VersionDelta): void {
+    this.project.advance(files, delta);
+  }
+
+  /** Read the data source options of the configuration files (tracked: read again only when what they read changes). */
+  readDataSourceTracked(files: Map<string, TypeormFileFacts>, configFiles: readonly string[]): Tracked<{ failed?: Diagnostic }> {
+    this.diagnostics.length = 0;
+    const t = this.project.track(() => {
+      for (const p of configFiles) this.project.touch(p);
+      return this.readDataSource(files, configFiles.filter((p) => files.get(p)!.configs.length > 0));
+    });
+    this.dsResult = t;
+    return t;
   }
 
   strictOf(file: string): boolean {
@@ -457,80 +555,101 @@ class Builder {
     return undefined;
   }
 
-  collectEntities(files: Map<string, TypeormFileFacts>): void {
-    const candidates: Array<{ a: TargetArgs; schemaFactKey?: string }> = [];
-    for (const file of this.cache.sortedPaths) {
-      const facts = files.get(file)!;
-      if (facts.classes.length === 0 && facts.schemas.length === 0) continue;
-      const kept = this.cache.dirtyFiles && !this.cache.dirtyFiles.has(file) ? this.cache.fileCandidates.get(file) : undefined;
-      if (kept) {
-        // nothing this file's candidates read changed since the previous version
-        if (kept.diags.length > 0) this.project.replay(kept);
-        candidates.push(...kept.value);
+  /**
+   * The entity classes and schemas of the version, in TypeORM's order (by path, then as declared),
+   * with the single-table inheritance links. An entity whose arguments are the same objects as in
+   * the previous version and that read nothing that changed is taken over (with its tables).
+   */
+  collectEntities(files: Map<string, TypeormFileFacts>): Collected {
+    const col: Collected = { files: [], lists: [], cands: [], candEnts: [], candMongo: [], structure: [] };
+    this.project.capture(() => {
+      for (const file of this.cache.sortedPaths) {
+        const facts = files.get(file)!;
+        if (facts.classes.length === 0 && facts.schemas.length === 0) continue;
+        const t = this.candidatesOf(file, facts);
+        col.files.push(file);
+        col.lists.push(t);
+        col.cands.push(...t.value);
+      }
+    });
+    for (const c of col.cands) {
+      const { a, schemaFactKey } = c;
+      if (a.schema) this.schemaArgs.set(a.key, a);
+      if (!this.selected(c)) {
+        col.candEnts.push(undefined);
+        col.candMongo.push(undefined);
         continue;
       }
-      const hit = this.cache.fileCandidates.get(file);
-      const list = this.cached(this.cache.fileCandidates, file, () => this.fileCandidates(file, facts));
-      const t = this.cache.fileCandidates.get(file)!;
-      if (t !== hit) this.cache.index(this.cache.candidateIndex, t, file);
-      candidates.push(...list);
-    }
-    for (const { a, schemaFactKey } of candidates) {
-      if (a.schema) this.schemaArgs.set(a.key, a);
-      if (this.ds.select && !this.ds.select.match(a.file) && !this.ds.select.keys.has(a.key) && !(schemaFactKey && this.ds.select.keys.has(schemaFactKey))) continue;
       if (a.mongo) {
-        this.project.report(`mongo\u0000${a.key}`, {
+        col.candEnts.push(undefined);
+        col.candMongo.push([[`mongo\u0000${a.key}`, {
           severity: 'warning', code: 'typeorm/mongodb-entity', file: a.file, line: a.tables[0]!.origin.line,
           message: `${a.name} uses ObjectIdColumn (a MongoDB entity), which has no relational table; it is left out`,
-        });
+        }]]);
         continue;
       }
+      col.candMongo.push(undefined);
       const entry = this.cache.entities.get(a.key);
       const holds = entry && entry.ent.args === a && (this.cache.dirtyEntities ? !this.cache.dirtyEntities.has(a.key) : this.project.valid(entry.result));
-      if (entry && holds) {
-        this.reused.add(entry.ent);
-        this.entities.push(entry.ent);
-        this.entityByKey.set(a.key, entry.ent);
-        if (schemaFactKey) this.entityByKey.set(schemaFactKey, entry.ent);
-        continue;
-      }
-      const ent = this.newEntMeta(a);
+      const ent = entry && holds ? entry.ent : this.newEntMeta(a);
+      if (entry && holds) this.reused.add(ent);
+      col.candEnts.push(ent);
       this.entities.push(ent);
       this.entityByKey.set(a.key, ent);
       if (schemaFactKey) this.entityByKey.set(schemaFactKey, ent);
     }
-    // single-table inheritance: children share their parent's table
-    for (const ent of this.entities) {
-      if (ent.kind !== 'entity-child') continue;
-      const parent = this.entities.find((p) => p.kind !== 'entity-child' && p.args.inheritance?.pattern === 'STI' && this.inherits(ent.key, p.key));
-      if (!parent) {
-        this.project.report(`sti\u0000${ent.key}`, {
-          severity: 'warning', code: 'typeorm/child-without-parent', file: ent.args.file, line: ent.origin.line,
-          message: `${ent.targetName} is a @ChildEntity but no base class declares @TableInheritance; it gets no table`,
-        });
-        continue;
+    col.structure = this.project.capture(() => {
+      // single-table inheritance: children share their parent's table
+      for (const ent of this.entities) {
+        if (ent.kind !== 'entity-child') continue;
+        const parent = this.entities.find((p) => p.kind !== 'entity-child' && p.args.inheritance?.pattern === 'STI' && this.inherits(ent.key, p.key));
+        if (!parent) {
+          this.project.report(`sti\u0000${ent.key}`, {
+            severity: 'warning', code: 'typeorm/child-without-parent', file: ent.args.file, line: ent.origin.line,
+            message: `${ent.targetName} is a @ChildEntity but no base class declares @TableInheritance; it gets no table`,
+          });
+          continue;
+        }
+        ent.parent = parent;
       }
-      ent.parent = parent;
-    }
-    for (const ent of this.entities) {
-      if (ent.kind === 'entity-child') continue;
-      if (ent.args.inheritance?.pattern === 'STI') {
-        ent.sti = true;
-        const children = this.entities.filter((c) => c.kind === 'entity-child' && c.parent === ent);
-        if (!this.reused.has(ent)) ent.tree.push(...children.map((c) => c.key));
-      } else if (ent.args.inheritance) {
-        this.project.report(`cti\u0000${ent.key}`, {
-          severity: 'warning', code: 'typeorm/unsupported-inheritance', file: ent.args.file, line: ent.origin.line,
-          message: `${ent.targetName}: inheritance pattern ${ent.args.inheritance.pattern} is not supported by TypeORM 0.3; read as separate tables`,
-        });
+      for (const ent of this.entities) {
+        if (ent.kind === 'entity-child') continue;
+        if (ent.args.inheritance?.pattern === 'STI') {
+          ent.sti = true;
+          const children = this.entities.filter((c) => c.kind === 'entity-child' && c.parent === ent);
+          if (!this.reused.has(ent)) ent.tree.push(...children.map((c) => c.key));
+        } else if (ent.args.inheritance) {
+          this.project.report(`cti\u0000${ent.key}`, {
+            severity: 'warning', code: 'typeorm/unsupported-inheritance', file: ent.args.file, line: ent.origin.line,
+            message: `${ent.targetName}: inheritance pattern ${ent.args.inheritance.pattern} is not supported by TypeORM 0.3; read as separate tables`,
+          });
+        }
       }
-    }
+    });
+    return col;
+  }
+
+  /** Whether the data source's entity selection takes a candidate. */
+  private selected({ a, schemaFactKey }: Candidate): boolean {
+    const sel = this.ds.select;
+    return !sel || sel.match(a.file) || sel.keys.has(a.key) || (!!schemaFactKey && sel.keys.has(schemaFactKey));
+  }
+
+  /** The candidates of one file: taken over when nothing they read changed, else read again. */
+  candidatesOf(file: string, facts: TypeormFileFacts): Tracked<Candidate[]> {
+    const hit = this.cache.fileCandidates.get(file);
+    // nothing this file's candidates read changed since the previous version
+    if (hit && this.cache.dirtyFiles && !this.cache.dirtyFiles.has(file)) return hit;
+    this.cached(this.cache.fileCandidates, file, () => this.fileCandidates(file, facts));
+    const t = this.cache.fileCandidates.get(file)!;
+    if (t !== hit) this.cache.index(this.cache.candidateIndex, t, file);
+    return t;
   }
 
   /** The entity classes and schemas of one file, read in full (other classes are not: their decorators are not TypeORM's). */
-  private fileCandidates(file: string, facts: TypeormFileFacts): Array<{ a: TargetArgs; schemaFactKey?: string }> {
+  private fileCandidates(file: string, facts: TypeormFileFacts): Candidate[] {
     this.project.touch(file);
-    const out: Array<{ a: TargetArgs; schemaFactKey?: string }> = [];
+    const out: Candidate[] = [];
     for (const c of facts.classes) {
       if (c.decorators.length === 0) continue;
       const key = classKey(file, c.name);
@@ -556,14 +675,16 @@ class Builder {
 
   private newEntMeta(a: TargetArgs): EntMeta {
     const t = a.tables[0]!;
+    const ancestors = a.cls ? this.ancestors(a.key) : [];
     return {
       key: a.key, targetName: a.name, args: a, kind: t.type,
       ...(t.name ? { givenTableName: t.name } : {}),
       tableNameWithoutPrefix: '', tableName: '',
       ...(t.schema ? { schema: t.schema } : {}),
       ...(t.database ? { database: t.database } : {}),
-      tree: [a.key, ...(a.cls ? this.ancestors(a.key) : [])],
+      tree: [a.key, ...ancestors],
       ownColumns: [], embeddeds: [], relations: [], uniques: [], foreignKeys: [], junctions: [], origin: t.origin,
+      ancDiags: a.cls ? this.cache.ancestors.get(a.key)!.diags : NO_DIAGS,
     };
   }
 
@@ -584,7 +705,7 @@ class Builder {
     }
   }
 
-  nameEntities(): void {
+  nameEntities(dupKeys: Set<string>): void {
     // an entity taken over keeps the names it was given (the naming inputs are part of the run's fingerprint)
     for (const ent of this.entities) if (!this.reused.has(ent) || !ent.tableName) this.nameOne(ent);
     const owners = new Map<string, EntMeta>();
@@ -602,6 +723,7 @@ class Builder {
           message: `${ent.targetName} and ${first.targetName} (${first.args.file}) both map to the table ${ent.tableName}; ${ent.targetName} is left out`,
         });
         this.entityByKey.delete(ent.key);
+        dupKeys.add(ent.key).add(first.key);
         continue;
       }
       owners.set(id, ent);
@@ -688,7 +810,8 @@ class Builder {
 
   buildColumns(ent: EntMeta): void {
     const order = this.definitionOrder(ent);
-    const childKeys = new Set(this.entities.filter((c) => c.kind === 'entity-child' && c.parent === ent).map((c) => c.key));
+    // only a single-table parent has children
+    const childKeys = ent.sti ? new Set(this.entities.filter((c) => c.kind === 'entity-child' && c.parent === ent).map((c) => c.key)) : NO_KEYS;
     for (const args of this.columnArgsOf(order)) {
       let a = args;
       if (ent.kind === 'regular' && args.target !== ent.key) {
@@ -1304,6 +1427,191 @@ class Builder {
     return views;
   }
 
+  /** Start a version: what the previous version's build kept per version is dropped. */
+  beginVersion(): void {
+    this.phaseA.clear();
+    this.closureMemo.clear();
+    this.sigMemo.clear();
+    this.fresh = new Set();
+    this.reused.clear();
+  }
+
+  /** Positions of the entities by key (undefined when keys repeat). */
+  private positions(): void {
+    const at = new Map<string, number>();
+    this.entities.forEach((e, i) => at.set(e.key, i));
+    this.entAt = at.size === this.entities.length ? at : undefined;
+  }
+
+  /**
+   * Collect every entity of the version (taking over those whose inputs did not change) and
+   * build the others; the frame it returns holds every part of the output.
+   */
+  fullStep(files: Map<string, TypeormFileFacts>): Frame {
+    this.entities = [];
+    this.entityByKey.clear();
+    this.schemaArgs.clear();
+    this.entAt = undefined;
+    let col = this.collectEntities(files);
+    let dupKeys = new Set<string>();
+    let dups = this.project.capture(() => this.nameEntities(dupKeys));
+    const entitySet = this.entitySignature();
+    if (entitySet !== this.cache.entitySet) {
+      // another entity set: nothing of the previous version's entities is taken over
+      this.cache.clearEntities();
+      this.cache.entitySet = entitySet;
+      this.resetEntities();
+      col = this.collectEntities(files);
+      dupKeys = new Set();
+      dups = this.project.capture(() => this.nameEntities(dupKeys));
+    }
+    this.positions();
+    const fresh = new Set(this.entities.filter((e) => e.kind === 'regular' && !this.reused.has(e)));
+    this.project.capture(() => this.buildAll(fresh));
+    const candAt = new Map<string, number>();
+    col.cands.forEach((c, i) => candAt.set(c.a.key, i));
+    const unbuilt = col.candEnts.filter((e): e is EntMeta => !!e && (e.kind !== 'regular' || this.entityByKey.get(e.key) !== e));
+    return {
+      ...col,
+      structure: [...col.structure, ...dups],
+      fileAt: new Map(col.files.map((f, i) => [f, i])),
+      ...(candAt.size === col.cands.length && this.entAt ? { candAt } : {}),
+      unbuilt, dupKeys, dedupe: [], views: this.views(),
+    };
+  }
+
+  /**
+   * The version's changes applied to the previous version's frame, when they leave the entity set
+   * as it is: the candidates of the files they reach are read again, the entities they reach are
+   * built again (with those whose targets now look otherwise), and nothing else is looked at.
+   * Returns the entities built, or null when the set may have changed (then `fullStep`).
+   */
+  patch(frame: Frame, files: Map<string, TypeormFileFacts>): EntMeta[] | null {
+    const { candAt } = frame;
+    const dirtyFiles = this.cache.dirtyFiles;
+    const dirtyEntities = this.cache.dirtyEntities;
+    if (!candAt || !dirtyFiles || !dirtyEntities) return null;
+    // metas that are not built depend on their candidate and their ancestors only
+    for (const e of frame.unbuilt) {
+      if (!e.args.cls) continue;
+      const t = this.cache.ancestors.get(e.key);
+      if (!t || !this.project.valid(t)) return null;
+    }
+    // candidates of the files the changes reach
+    const lists: Array<[number, Tracked<Candidate[]>]> = [];
+    const changed: Array<[number, Candidate]> = [];
+    for (const f of dirtyFiles) {
+      const at = frame.fileAt.get(f);
+      const facts = files.get(f);
+      const declares = !!facts && (facts.classes.length > 0 || facts.schemas.length > 0);
+      if (at === undefined) {
+        if (declares) return null;
+        continue;
+      }
+      if (!declares) return null;
+      const t = this.candidatesOf(f, facts);
+      const before = frame.lists[at]!;
+      if (t === before) continue;
+      if (t.value.length !== before.value.length) return null;
+      for (let i = 0; i < t.value.length; i++) {
+        const now = t.value[i]!;
+        const old = before.value[i]!;
+        if (now.a.key !== old.a.key || now.schemaFactKey !== old.schemaFactKey) return null;
+        if (now.a !== old.a) changed.push([candAt.get(now.a.key)!, now]);
+      }
+      lists.push([at, t]);
+    }
+    // entities built again: new arguments, or something they read changed
+    const replace: Array<{ ci: number; old: EntMeta; ent: EntMeta; c: Candidate }> = [];
+    const seen = new Set<number>();
+    const renew = (ci: number, c: Candidate): boolean => {
+      seen.add(ci);
+      const old = frame.candEnts[ci];
+      if (!old) {
+        // not selected by the data source (a MongoDB entity is another matter)
+        return !frame.candMongo[ci] && !c.a.mongo && !this.selected(c);
+      }
+      if (c.a.mongo || old.sti || old.args.inheritance || c.a.inheritance || frame.dupKeys.has(old.key)) return false;
+      if ((old.kind !== 'regular' && old.kind !== 'view') || c.a.tables[0]!.type !== old.kind || this.entityByKey.get(old.key) !== old) return false;
+      const ent = this.newEntMeta(c.a);
+      this.nameOne(ent);
+      if (setSigOf(ent) !== setSigOf(old) || ent.givenTableName !== old.givenTableName || ent.tableNameWithoutPrefix !== old.tableNameWithoutPrefix) return false;
+      replace.push({ ci, old, ent, c });
+      return true;
+    };
+    for (const [ci, c] of changed) if (!renew(ci, c)) return null;
+    for (const k of dirtyEntities) {
+      const ci = candAt.get(k);
+      if (ci === undefined || seen.has(ci)) continue;
+      const old = frame.candEnts[ci];
+      if (!old || old.kind !== 'regular' || this.entityByKey.get(k) !== old) continue;
+      if (!renew(ci, frame.cands[ci]!)) return null;
+    }
+    // the set is the same: apply
+    for (const [at, t] of lists) frame.lists[at] = t;
+    for (const [ci, c] of changed) {
+      frame.cands[ci] = c;
+      if (c.a.schema) this.schemaArgs.set(c.a.key, c.a);
+    }
+    const fresh = new Set<EntMeta>();
+    let views = false;
+    for (const { ci, old, ent, c } of replace) {
+      frame.candEnts[ci] = ent;
+      this.entities[this.posOf(old)] = ent;
+      this.entityByKey.set(ent.key, ent);
+      if (c.schemaFactKey) this.entityByKey.set(c.schemaFactKey, ent);
+      if (ent.kind === 'regular') {
+        ent.prevIds = tableIds(old.tables);
+        fresh.add(ent);
+      } else {
+        frame.unbuilt[frame.unbuilt.indexOf(old)] = ent;
+        views = true;
+      }
+    }
+    const built = fresh.size > 0 ? this.buildAll(fresh) : [];
+    if (views) frame.views = this.views();
+    return built;
+  }
+
+  /** The version's output from the frame: the tables in entity order, duplicates left out, and the diagnostics in a fresh assembly's order. */
+  output(frame: Frame, dedupe: boolean): { tables: TableInput[]; views: NonNullable<SnapshotInput['views']>; diagnostics: Diagnostic[]; joinTables: number; entities: number } {
+    let tables: TableInput[] = [];
+    let entities = 0;
+    for (const e of this.entities) {
+      if (e.kind !== 'regular') continue;
+      entities++;
+      for (const x of e.tables!) tables.push(x);
+    }
+    if (dedupe) {
+      let out = tables;
+      frame.dedupe = this.project.capture(() => {
+        out = dedupeTables(tables, this.project);
+      });
+      tables = out;
+    }
+    let joinTables = 0;
+    for (const x of tables) if (x.kind === 'implicit-join') joinTables++;
+    // one diagnostic per key, in the order a fresh assembly gives them
+    const seen = new Set<string>();
+    const diagnostics: Diagnostic[] = [...this.diagnostics];
+    const add = (list: DiagList | undefined): void => {
+      if (!list) return;
+      for (const [k, d] of list) {
+        if (seen.has(k)) continue;
+        seen.add(k);
+        diagnostics.push(d);
+      }
+    };
+    add(this.dsResult?.diags);
+    for (const t of frame.lists) if (t.diags.length > 0) add(t.diags);
+    for (let i = 0; i < frame.cands.length; i++) add(frame.candMongo[i] ?? frame.candEnts[i]?.ancDiags);
+    add(frame.structure);
+    for (const e of this.entities) if (e.kind === 'regular' && e.phaseADiags!.length > 0) add(e.phaseADiags);
+    for (const e of this.entities) if (e.kind === 'regular' && e.resultDiags!.length > 0) add(e.resultDiags);
+    add(frame.dedupe);
+    return { tables, views: frame.views, diagnostics, joinTables, entities };
+  }
+
   resetEntities(): void {
     this.entities = [];
     this.entityByKey.clear();
@@ -1327,7 +1635,7 @@ class Builder {
     if (got) return got;
     const placeholder: Tracked<void> = { value: undefined, deps: new Map(), diags: [] };
     this.closureMemo.set(ent, placeholder);
-    const cached = this.reused.has(ent) ? this.cache.entities.get(ent.key)?.result : undefined;
+    const cached = ent.kind === 'regular' && !this.fresh.has(ent) ? this.cache.entities.get(ent.key)?.result : undefined;
     const t = this.project.track(() => {
       if (cached) {
         for (const p of cached.deps.keys()) this.project.touch(p);
@@ -1375,6 +1683,8 @@ class Builder {
 
   /** A column of a target that a join column or junction column references by name. */
   private useTargetColumn(target: EntMeta, c: ColMeta): void {
+    // a single-table child's columns are its parent's (built with the parent)
+    if (target.kind === 'entity-child' && target.parent) target = target.parent;
     this.targetsUsed?.set(`${target.key}\u0001${c.propertyName}`, JSON.stringify([c.databaseName, c.type, c.length, c.precision, c.scale, c.enumValues, c.enumName]));
   }
 
@@ -1407,34 +1717,84 @@ class Builder {
     if (target.keyedByRelation) this.touchAll(this.closure(target));
   }
 
-  /** Build (or take over from the previous version) every entity's tables, in TypeORM's entity order. */
-  buildAll(): TableInput[] {
-    const regular = this.entities.filter((e) => e.kind === 'regular');
-    const fresh = new Set(regular.filter((e) => !this.reused.has(e)));
-    const runPhaseA = (ent: EntMeta): void => {
-      this.phaseA.set(ent, this.project.track(() => {
-        this.project.touch(ent.args.file);
-        this.buildColumns(ent);
-        this.buildRelations(ent);
-        for (const rel of ent.relations) {
-          if (rel.relationType === 'one-to-many') continue;
-          const inv = this.resolveTarget(rel);
-          if (inv) rel.inverse = inv;
-        }
-        ent.keyedByRelation = this.keyedByRelation(ent);
-      }));
-    };
-    for (const ent of fresh) runPhaseA(ent);
-    for (const ent of fresh) this.signature(ent);
-    // an entity taken over whose targets now look otherwise is built again (until nothing changes);
-    // only targets built again in this version can look otherwise
-    const rebuiltKeys = new Set([...fresh].map((e) => e.key));
-    for (let changed = rebuiltKeys.size > 0; changed; ) {
-      changed = false;
+  /** Phase A of one entity: its columns, relations and their targets. */
+  private runPhaseA(ent: EntMeta): void {
+    const t = this.project.track(() => {
+      this.project.touch(ent.args.file);
+      this.buildColumns(ent);
+      this.buildRelations(ent);
+      for (const rel of ent.relations) {
+        if (rel.relationType === 'one-to-many') continue;
+        const inv = this.resolveTarget(rel);
+        if (inv) rel.inverse = inv;
+      }
+      ent.keyedByRelation = this.keyedByRelation(ent);
+    });
+    this.phaseA.set(ent, t);
+    ent.phaseADiags = t.diags;
+  }
+
+  /** Position of an entity in the version's entity order. */
+  private posOf(ent: EntMeta): number {
+    const at = this.entAt?.get(ent.key);
+    return at !== undefined && this.entities[at] === ent ? at : this.entities.indexOf(ent);
+  }
+
+  private inOrder(list: Iterable<EntMeta>): EntMeta[] {
+    return [...list].map((e) => [this.posOf(e), e] as const).sort((x, y) => x[0] - y[0]).map((x) => x[1]);
+  }
+
+  /** Entities taken over that used one of these targets when they were built (all of them when keys are not unique). */
+  private usersOf(keys: readonly string[]): EntMeta[] {
+    const out = new Set<EntMeta>();
+    if (!this.entAt) {
+      for (const e of this.entities) if (e.kind === 'regular' && !this.fresh.has(e)) out.add(e);
+      return [...out];
+    }
+    for (const k of keys) {
+      for (const u of this.cache.targetUsers.get(k) ?? []) {
+        const e = this.entityByKey.get(u);
+        if (e && e.kind === 'regular' && !this.fresh.has(e) && this.cache.entities.get(u)?.ent === e) out.add(e);
+      }
+    }
+    return this.inOrder(out);
+  }
+
+  /** A new meta for an entity taken over, in its place (same arguments, built again). */
+  private replaceEntity(old: EntMeta): EntMeta {
+    const ent = this.newEntMeta(old.args);
+    ent.prevIds = tableIds(old.tables);
+    const at = this.posOf(old);
+    this.entities[at] = ent;
+    this.entityByKey.set(ent.key, ent);
+    this.cache.dropEntity(old.key);
+    this.nameOne(ent);
+    // a single-table parent keeps its children (the entity set is the same, so are they)
+    if (old.sti) {
+      ent.sti = true;
+      ent.tree = [...old.tree];
+      for (const r of this.entities) if (r.parent === old) r.parent = ent;
+    }
+    return ent;
+  }
+
+  /**
+   * Build the entities of `fresh` (phase A, then phase B in entity order), and again every entity
+   * taken over whose targets now look otherwise (found through the index of who used which
+   * target), until nothing changes. The others keep their tables.
+   */
+  buildAll(fresh: Set<EntMeta>): EntMeta[] {
+    this.fresh = fresh;
+    const rebuiltKeys = new Set<string>();
+    let batch = this.inOrder(fresh);
+    while (batch.length > 0) {
+      for (const ent of batch) this.runPhaseA(ent);
+      for (const ent of batch) rebuiltKeys.add(ent.key);
       this.sigMemo.clear();
-      for (let i = 0; i < this.entities.length; i++) {
-        const old = this.entities[i]!;
-        if (!this.reused.has(old)) continue;
+      for (const ent of batch) this.signature(ent);
+      // an entity taken over whose targets now look otherwise is built again; only targets built again in this version can look otherwise
+      const next: EntMeta[] = [];
+      for (const old of this.usersOf(batch.map((e) => e.key))) {
         const entry = this.cache.entities.get(old.key)!;
         let same = true;
         for (const [k, sig] of entry.targets) {
@@ -1448,38 +1808,18 @@ class Builder {
           }
         }
         if (same) continue;
-        const ent = this.newEntMeta(old.args);
-        this.entities[i] = ent;
-        this.entityByKey.set(ent.key, ent);
-        this.reused.delete(old);
-        this.cache.entities.delete(old.key);
-        this.nameOne(ent);
-        // a single-table parent keeps its children (the entity set is the same, so are they)
-        if (old.sti) {
-          ent.sti = true;
-          ent.tree = [...old.tree];
-        }
-        for (const r of this.entities) if (r.parent === old) r.parent = ent;
+        const ent = this.replaceEntity(old);
         fresh.add(ent);
-        rebuiltKeys.add(ent.key);
-        changed = true;
+        next.push(ent);
       }
-      if (changed) {
+      if (next.length > 0) {
         // references to the replaced entities are resolved again
-        for (const ent of fresh) if (!this.phaseA.has(ent)) runPhaseA(ent);
         for (const ent of fresh) for (const rel of ent.relations) if (rel.inverse) rel.inverse = this.entityByKey.get(rel.inverse.key) ?? rel.inverse;
-        for (const ent of fresh) this.signature(ent);
       }
+      batch = next;
     }
-    const tables: TableInput[] = [];
-    for (const ent of this.entities) {
-      if (ent.kind !== 'regular') continue;
-      if (this.reused.has(ent)) {
-        const entry = this.cache.entities.get(ent.key)!;
-        if (entry.result.diags.length > 0) this.project.replay(entry.result);
-        tables.push(...entry.result.value);
-        continue;
-      }
+    const built = this.inOrder(fresh);
+    for (const ent of built) {
       const targets = new Map<string, string>();
       this.targetsUsed = targets;
       const result = this.project.track(() => {
@@ -1495,11 +1835,11 @@ class Builder {
         return this.entityTables(ent);
       });
       this.targetsUsed = null;
-      this.cache.entities.set(ent.key, { ent, result, targets });
-      this.cache.index(this.cache.entityIndex, result, ent.key);
-      tables.push(...result.value);
+      ent.tables = result.value;
+      ent.resultDiags = result.diags;
+      this.cache.setEntity(ent, result, targets);
     }
-    return tables;
+    return built;
   }
 
   private tableOutput(ent: EntMeta, kind: 'table' | 'implicit-join', ormName: string | undefined): TableInput {
@@ -1615,13 +1955,20 @@ const factId = (f: object | undefined): number => {
 /**
  * The assembly of a run, version after version: what a version's files share with the previous
  * version's is taken over (each entity's tables are rebuilt only when a file they were read from
- * changed), so that a long history costs about what its changes cost.
+ * changed, or a target they used now looks otherwise), so that a long history costs about what
+ * its changes cost. The output of every version is what a fresh assembly of its files gives,
+ * diagnostics and their order included.
  */
 export class TypeormAssembler {
   private readonly cache = new AssemblyCache();
   private readonly settings: TypeormSettings;
   private readonly settingsKey: string;
   private pathsKey = '';
+  /** The facts of the current version, by path (kept up to date from the changes). */
+  private readonly files = new Map<string, TypeormFileFacts>();
+  /** The builder of the current paths and configuration (its memos are checked against each version's changes). */
+  private builder: Builder | null = null;
+  private frame: Frame | null = null;
 
   constructor(options: AdapterOptionValues) {
     this.settings = readSettings(options);
@@ -1630,64 +1977,94 @@ export class TypeormAssembler {
 
   assemble(input: AssembleInput<TypeormFileFacts>): AssembleResult {
     const settings = this.settings;
-    const files = new Map<string, TypeormFileFacts>();
-    for (const f of input.files) if (f.facts) files.set(f.path, f.facts);
     const cache = this.cache;
+    const files = this.files;
+    // the paths whose facts changed (added and removed ones included), with their facts before
     const changed: string[] = [];
-    for (const [p, f] of files) if (cache.previous.get(p) !== f) changed.push(p);
-    for (const p of cache.previous.keys()) if (!files.has(p)) changed.push(p);
+    const before = new Map<string, TypeormFileFacts | undefined>();
+    let count = 0;
+    let added = false;
+    for (const f of input.files) {
+      if (!f.facts) continue;
+      count++;
+      const old = files.get(f.path);
+      if (old === f.facts) continue;
+      changed.push(f.path);
+      before.set(f.path, old);
+      if (old === undefined) added = true;
+      files.set(f.path, f.facts);
+    }
+    let pathsChanged = added;
+    if (added || count !== files.size) {
+      const present = new Set(input.files.filter((f) => f.facts).map((f) => f.path));
+      for (const [p, f] of files) {
+        if (present.has(p)) continue;
+        changed.push(p);
+        before.set(p, f);
+        files.delete(p);
+        pathsChanged = true;
+      }
+    }
     cache.version++;
-    const b = new Builder(files, settings, cache, { version: cache.version, changed });
-    const previous = cache.previous;
-    cache.previous = files;
+    const delta: VersionDelta = { version: cache.version, changed };
+    // classes by key, brought up to date for the files that changed
+    for (const file of changed) {
+      for (const c of before.get(file)?.classes ?? []) cache.classByKey.delete(classKey(file, c.name));
+      for (const c of files.get(file)?.classes ?? []) cache.classByKey.set(classKey(file, c.name), { file, cls: c });
+    }
     // the data source and tsconfig files, kept up to date from the changed paths
+    let configsChanged = false;
     if (cache.version === 1 || changed.some((p) => !files.has(p) || files.get(p)!.configs.length > 0 || files.get(p)!.kind === 'tsconfig' || cache.configFiles.includes(p))) {
-      cache.configFiles = [...files].filter(([, f]) => f.configs.length > 0 || f.kind === 'tsconfig').map(([p]) => p).sort();
+      const list = [...files].filter(([, f]) => f.configs.length > 0 || f.kind === 'tsconfig').map(([p]) => p).sort();
+      configsChanged = list.join('\u0000') !== cache.configFiles.join('\u0000');
+      cache.configFiles = list;
     }
-    const ds = b.project.track(() => {
-      for (const p of cache.configFiles) b.project.touch(p);
-      return b.readDataSource(files, cache.configFiles.filter((p) => files.get(p)!.configs.length > 0));
-    });
-    // what every result depends on: the options, the paths (module resolution), the data source and tsconfig files
-    if (cache.version === 1 || changed.some((p) => !files.has(p) || !cache.sortedPaths.includes(p))) this.pathsKey = JSON.stringify([...files.keys()].sort());
-    const global = JSON.stringify([this.settingsKey, this.pathsKey, [...ds.deps].map(([p, f]) => [p, typeof f === 'string' ? f : factId(f)])]);
-    if (global !== this.cache.global) {
-      this.cache.clear();
-      this.cache.global = global;
-      this.cache.entitySet = '';
-      this.cache.sortedPaths = [...files.keys()].sort();
+    if (cache.version === 1 || pathsChanged) this.pathsKey = JSON.stringify([...files.keys()].sort());
+    let b = this.builder;
+    if (b) b.advance(files, delta);
+    // the data source is read again when what it read changed; what every result depends on is
+    // the options, the paths (module resolution), the data source and tsconfig files
+    if (!b || cache.version === 1 || pathsChanged || configsChanged || !b.dsResult || !b.project.valid(b.dsResult)) {
+      const nb = new Builder(files, settings, cache, delta);
+      const ds = nb.readDataSourceTracked(files, cache.configFiles);
+      const global = JSON.stringify([this.settingsKey, this.pathsKey, [...ds.deps].map(([p, f]) => [p, typeof f === 'string' ? f : factId(f)])]);
+      if (!b || global !== cache.global) {
+        cache.clear();
+        cache.global = global;
+        cache.entitySet = '';
+        cache.sortedPaths = [...files.keys()].sort();
+        this.builder = b = nb;
+        this.frame = null;
+      } else {
+        // the same data source: the builder and its memos stay
+        b.dsResult = ds;
+      }
     }
+    const ds = b.dsResult!;
     if (ds.value.failed) return { failed: true, diagnostics: [...settings.diagnostics, ds.value.failed] };
-    if (cache.version > 1 && cache.fileCandidates.size > 0) cache.markDirty(changed, (p) => exportSignature(previous.get(p)) !== exportSignature(files.get(p)));
+    if (cache.version > 1 && cache.fileCandidates.size > 0) cache.markDirty(changed, (p) => exportSignature(before.get(p)) !== exportSignature(files.get(p)));
     else {
       cache.dirtyFiles = null;
       cache.dirtyEntities = null;
     }
-    b.collectEntities(files);
-    b.nameEntities();
-    const entitySet = b.entitySignature();
-    if (entitySet !== this.cache.entitySet) {
-      // another entity set: nothing of the previous version's entities is taken over
-      this.cache.entities.clear();
-      this.cache.entitySet = entitySet;
-      b.resetEntities();
-      b.collectEntities(files);
-      b.nameEntities();
+    b.beginVersion();
+    let frame = this.frame;
+    const built = frame ? b.patch(frame, files) : null;
+    let dedupe = true;
+    if (frame && built) dedupe = frame.dedupe.length > 0 || built.some((e) => e.prevIds === undefined || e.prevIds !== tableIds(e.tables));
+    else {
+      b.beginVersion();
+      this.frame = frame = b.fullStep(files);
     }
-    const tables = dedupeTables(b.buildAll(), b.project);
-    const views = b.views();
-    const diagnostics = [...settings.diagnostics, ...b.diagnostics, ...b.project.diagnostics];
+    const out = b.output(frame, dedupe);
+    const diagnostics = [...settings.diagnostics, ...out.diagnostics];
     for (const m of input.missing) {
       diagnostics.push({ severity: 'warning', code: 'typeorm/file-left-out', file: m, message: `${m} could not be read; entities it declares are missing from this version` });
     }
     return {
-      snapshot: { tables, views },
+      snapshot: { tables: out.tables, views: out.views },
       diagnostics,
-      counters: {
-        entities: b.entities.filter((e) => e.kind === 'regular').length,
-        views: views.length,
-        joinTables: tables.filter((t) => t.kind === 'implicit-join').length,
-      },
+      counters: { entities: out.entities, views: out.views.length, joinTables: out.joinTables },
     };
   }
 }

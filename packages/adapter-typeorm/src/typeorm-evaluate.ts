@@ -147,10 +147,14 @@ export interface VersionDelta {
   changed: readonly string[];
 }
 
-/** The files of one version and the resolution over them. */
+/**
+ * The files of one version and the resolution over them. A project lives as long as the paths,
+ * options and configuration files of a run stay the same: `advance` moves it to the next version,
+ * and every memo it keeps is a tracked result, checked against the files that changed.
+ */
 export class Project {
   readonly resolver: ModuleResolver;
-  readonly diagnostics: Diagnostic[] = [];
+  diagnostics: Diagnostic[] = [];
   private readonly symMemo = new Map<string, Tracked<Sym>>();
   private readonly constMemo = new Map<ConstFact, Tracked<E>>();
   private readonly constBusy = new Set<ConstFact>();
@@ -160,12 +164,34 @@ export class Project {
   /** While set, files read only to find what they export count as read for their exported names only. */
   private shallowDepth = 0;
 
-  private readonly expKeys: string[];
+  private expKeys: string[];
 
-  constructor(readonly files: ReadonlyMap<string, TypeormFileFacts>, private readonly delta?: VersionDelta) {
+  constructor(public files: ReadonlyMap<string, TypeormFileFacts>, private delta?: VersionDelta) {
     this.expKeys = (delta?.changed ?? []).map((p) => `exp:${p}`);
-    const has = (p: string): boolean => files.has(p);
+    // the set of paths is the same for the project's life (module resolution and tsconfig views depend on it)
+    const has = (p: string): boolean => this.files.has(p);
     this.resolver = new ModuleResolver(has, (f) => this.tsconfigFor(f));
+  }
+
+  /** Move to the next version (same paths, options and configuration files): only the facts of `delta.changed` differ. */
+  advance(files: ReadonlyMap<string, TypeormFileFacts>, delta: VersionDelta): void {
+    this.files = files;
+    this.delta = delta;
+    this.expKeys = delta.changed.map((p) => `exp:${p}`);
+    this.reported.clear();
+    this.diagnostics = [];
+  }
+
+  /** Run a computation for its diagnostics only (what it reads is not recorded anywhere). */
+  capture(fn: () => void): Array<[string, Diagnostic]> {
+    const rec = { deps: new Set<string>(), diags: [] as Array<[string, Diagnostic]> };
+    this.recorders.push(rec);
+    try {
+      fn();
+    } finally {
+      this.recorders.pop();
+    }
+    return rec.diags;
   }
 
   /** The facts of a file, noted as read by every computation under way. */
@@ -300,7 +326,7 @@ export class Project {
     // a lookup for exports only is kept apart: its result does not stand for the declarations' contents
     const key = `${this.shallowDepth > 0 ? 1 : 0}\u0000${file}\u0000${name}`;
     let s = this.symMemo.get(key);
-    if (s) this.replay(s);
+    if (s && this.valid(s)) this.replay(s);
     else {
       s = this.track(() => this.symbolUncached(file, name, 0));
       this.symMemo.set(key, s);
@@ -409,7 +435,7 @@ export class Project {
 
   constValue(c: ConstFact, file: string): E {
     const got = this.constMemo.get(c);
-    if (got) {
+    if (got && this.valid(got)) {
       this.replay(got);
       return got.value;
     }
