@@ -9,13 +9,15 @@
 // extract also reports the time spent in the adapter's own steps (locate, parseFile, the
 // session's assemble), the rest being git and core. Peak memory is each process's max RSS.
 // Targets (issue 5): extract <= 1.5x the floor, >= 20x faster than naive.
-import { spawn, spawnSync } from 'node:child_process';
+import { spawnSync } from 'node:child_process';
 import { mkdirSync, rmSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { extractHistory, writeRepository } from '@schema-strata/core';
 import knex, { KnexSession, knexOptions, parseKnexSource } from '@schema-strata/adapter-knex';
+import { readBlobs } from './lib/git-blobs.js';
+import { rng } from './lib/rng.js';
 
 const here = dirname(fileURLToPath(import.meta.url));
 const require = createRequire(import.meta.url);
@@ -26,16 +28,6 @@ const NAIVE_SAMPLE = Number(process.env.KNEX_BENCH_NAIVE_SAMPLE ?? 60);
 
 // ------------------------------------------------------------------ a synthetic history
 
-function prng(seed) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 const NOUNS = ['tool', 'member', 'loan', 'repair', 'shelf', 'badge', 'event', 'donation', 'skill', 'visit', 'kit', 'part', 'note', 'slot', 'route'];
 
@@ -49,7 +41,7 @@ function renderMigration(m, variant) {
 
 /** Commits of a synthetic Knex project: mostly new migrations, some edits of old ones. */
 function generate(n) {
-  const rnd = prng(20240501);
+  const rnd = rng(20240501);
   const pick = (xs) => xs[Math.floor(rnd() * xs.length)];
   const tables = [];
   const migrations = [];
@@ -147,28 +139,6 @@ function time(fn) {
   return { ms: Number(process.hrtime.bigint() - t0) / 1e6, value: r };
 }
 
-/** Read blobs with one `git cat-file --batch`; resolves with their texts. */
-function catFile(repo, ids) {
-  return new Promise((resolve, reject) => {
-    const child = spawn('git', ['-C', repo, 'cat-file', '--batch'], { stdio: ['pipe', 'pipe', 'inherit'] });
-    const chunks = [];
-    child.stdout.on('data', (b) => chunks.push(b));
-    child.on('error', reject);
-    child.on('close', () => {
-      const buf = Buffer.concat(chunks);
-      const texts = [];
-      let pos = 0;
-      while (pos < buf.length) {
-        const nl = buf.indexOf(0x0a, pos);
-        const size = Number(buf.subarray(pos, nl).toString().split(' ')[2]);
-        texts.push(buf.subarray(nl + 1, nl + 1 + size).toString('utf8'));
-        pos = nl + 1 + size + 1;
-      }
-      resolve(texts);
-    });
-    child.stdin.end(ids.map((id) => `${id}\n`).join(''));
-  });
-}
 
 /** The floor: list the distinct migration blobs, read each once, parse each once. */
 async function floor(repo) {
@@ -177,7 +147,7 @@ async function floor(repo) {
     maxBuffer: 1 << 30,
   }).stdout;
   const ids = [...new Set(log.split('\n').filter((l) => l.startsWith(':')).map((l) => l.split(' ')[3]))];
-  const texts = await catFile(repo, ids);
+  const texts = await readBlobs(repo, ids);
   let nodes = 0;
   for (const text of texts) nodes += ts.createSourceFile('m.ts', text, ts.ScriptTarget.Latest, false, ts.ScriptKind.TS).statements.length;
   return { blobs: ids.length, nodes };

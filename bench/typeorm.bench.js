@@ -3,12 +3,13 @@
 // once with the TypeScript parser) and against the naive way (a ts-morph project of all entity
 // files built anew at every commit), measured side by side in one run, each part in its own
 // process so that peak memory figures do not mix. Targets: extract <= 1.5 x floor, naive >= 10 x extract.
-import { spawn, spawnSync } from 'node:child_process';
+import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import { existsSync, mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { createRequire } from 'node:module';
+import { readBlobs } from './lib/git-blobs.js';
 
 const here = dirname(fileURLToPath(import.meta.url));
 const root = join(here, '..');
@@ -110,22 +111,8 @@ async function readAllBlobs(repo) {
     if (m && !/^0+$/.test(m[1])) blobs.set(m[1], m[2]);
   }
   const ids = [...blobs.keys()];
-  const child = spawn('git', ['-C', repo, 'cat-file', '--batch'], { stdio: ['pipe', 'pipe', 'inherit'] });
-  const chunks = [];
-  child.stdout.on('data', (b) => chunks.push(b));
-  const done = new Promise((r) => child.on('close', r));
-  child.stdin.end(ids.join('\n') + '\n');
-  await done;
-  const buf = Buffer.concat(chunks);
-  const texts = [];
-  let at = 0;
-  for (const id of ids) {
-    const nl = buf.indexOf(0x0a, at);
-    const size = Number(buf.subarray(at, nl).toString().split(' ')[2]);
-    texts.push({ id, path: blobs.get(id), text: buf.subarray(nl + 1, nl + 1 + size).toString('utf8') });
-    at = nl + 1 + size + 1;
-  }
-  return texts;
+  const texts = await readBlobs(repo, ids);
+  return ids.map((id, i) => ({ id, path: blobs.get(id), text: texts[i] }));
 }
 
 async function partFloor(repo) {

@@ -5,18 +5,9 @@
 // version bumps in package.json). Deterministic: the same options give the same
 // repository, byte for byte.
 import { writeRepository, appendCommits } from '@schema-strata/core';
+import { rng } from './rng.js';
 
-/** A small, seedable PRNG (mulberry32). */
-export function rng(seed) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+export { rng };
 
 const SCALARS = ['Int', 'String', 'Boolean', 'DateTime', 'Decimal', 'Float', 'BigInt', 'Json'];
 const NOUNS = ['tool', 'loan', 'member', 'repair', 'shelf', 'fee', 'visit', 'note', 'badge', 'slot', 'kit', 'part', 'drill', 'saw', 'ladder', 'rack', 'bin', 'shift', 'event', 'review'];

@@ -1,10 +1,11 @@
 // One measurement of the Prisma benchmark, run in its own process; prints one JSON line.
-import { spawn, spawnSync, execFileSync } from 'node:child_process';
+import { spawnSync, execFileSync } from 'node:child_process';
 import { writeFileSync } from 'node:fs';
 import { join, dirname } from 'node:path';
 import { createRequire } from 'node:module';
 import { extractHistory, toDocument, serialiseDocument, GENERATOR } from '@schema-strata/core';
 import prisma, { modernise } from '@schema-strata/adapter-prisma';
+import { readBlobs } from './git-blobs.js';
 
 const [mode, repo, cache] = process.argv.slice(2);
 const require = createRequire(import.meta.url);
@@ -45,24 +46,3 @@ out.ms = Math.round(ms);
 out.maxRssMB = Math.round(process.resourceUsage().maxRSS / 1024);
 console.log(JSON.stringify(out));
 
-function readBlobs(repo, ids) {
-  return new Promise((resolve, reject) => {
-    const child = spawn('git', ['-C', repo, 'cat-file', '--batch'], { stdio: ['pipe', 'pipe', 'inherit'] });
-    const chunks = [];
-    child.stdout.on('data', (b) => chunks.push(b));
-    child.on('error', reject);
-    child.on('close', () => {
-      const buf = Buffer.concat(chunks);
-      const texts = [];
-      let at = 0;
-      while (at < buf.length) {
-        const nl = buf.indexOf(10, at);
-        const size = Number(buf.subarray(at, nl).toString().split(' ')[2]);
-        texts.push(buf.subarray(nl + 1, nl + 1 + size).toString('utf8'));
-        at = nl + 1 + size + 1;
-      }
-      resolve(texts);
-    });
-    child.stdin.end(ids.join('\n') + '\n');
-  });
-}
