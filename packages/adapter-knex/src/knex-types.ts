@@ -1,4 +1,4 @@
-import type { GeneratedKind, NeutralType } from '@schema-strata/core';
+import { withPrecision, type GeneratedKind, type NeutralType } from '@schema-strata/core';
 
 /** Database families whose type mappings differ in Knex's column compilers. */
 export type Dialect = 'postgresql' | 'mysql' | 'sqlite' | 'mssql' | 'oracle';
@@ -101,10 +101,6 @@ function timeOptions(a: ArgValue, b: ArgValue): { useTz?: boolean; precision?: n
     };
   }
   return { ...(typeof a === 'boolean' ? { useTz: !a } : {}), ...(num(b) !== undefined ? { precision: num(b)! } : {}) };
-}
-
-function withPrecision<T extends NeutralType>(t: T, p: number | undefined): T {
-  return p === undefined ? t : { ...t, precision: p };
 }
 
 /**

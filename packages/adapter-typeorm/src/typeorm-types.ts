@@ -1,4 +1,4 @@
-import type { NeutralType } from '@schema-strata/core';
+import { withPrecision, type NeutralType } from '@schema-strata/core';
 
 /**
  * Column types: what TypeORM records as a column's type (a type name as written, or the
@@ -173,10 +173,6 @@ const num = (s: string | undefined): number | undefined => {
 export function neutralType(family: DriverFamily, normalized: string, written: ColumnTypeRef | undefined, f: TypeFacets): NeutralType {
   const base = baseNeutral(family, normalized, written, f);
   return f.isArray ? { kind: 'array', of: base } : base;
-}
-
-function withPrecision(t: NeutralType & { precision?: number }, p: number | null | undefined): NeutralType {
-  return p === undefined || p === null ? t : ({ ...t, precision: p } as NeutralType);
 }
 
 function baseNeutral(family: DriverFamily, n: string, written: ColumnTypeRef | undefined, f: TypeFacets): NeutralType {

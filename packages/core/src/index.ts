@@ -3,7 +3,7 @@
  * interface, change detection, the interchange file and the CLI.
  */
 export type * from './model/types.js';
-export { tableId } from './model/types.js';
+export { tableId, withPrecision } from './model/types.js';
 export { canonicalJson, contentHash, canonicalSnapshot, canonicalOrder, formatType, sameType, enumValues, tableHash } from './model/canonical.js';
 export type * from './adapter/api.js';
 export { loadAdapter, installedAdapters, registerAdapterBase, KNOWN_ADAPTERS, type LoadedAdapter } from './adapter/loader.js';

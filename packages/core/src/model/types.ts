@@ -148,6 +148,11 @@ export interface Diagnostic {
   column?: number;
 }
 
+/** A time type with the fractional-second precision the ORM code gives (none: left unset). */
+export function withPrecision<T extends NeutralType>(t: T, p: number | null | undefined): T {
+  return p === undefined || p === null ? t : { ...t, precision: p };
+}
+
 /** Stable id of a table: its physical name, qualified by its namespace when it has one. */
 export function tableId(name: string, namespace?: string): string {
   return namespace ? `${namespace}.${name}` : name;
