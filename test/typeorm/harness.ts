@@ -1,9 +1,10 @@
 /** Running the TypeORM adapter's own steps (locate, parse, assemble) on files held in memory. */
+import { execFileSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import { readdirSync, readFileSync, statSync } from 'node:fs';
 import { join, relative } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import type { AdapterOptionValues, Diagnostic, Located, SnapshotInput, TreeView } from '@schema-strata/core';
+import { writeRepository, type AdapterOptionValues, type Diagnostic, type Located, type ScriptedCommit, type SnapshotInput, type TreeView } from '@schema-strata/core';
 import { typeormAdapter, type TypeormFileFacts } from '@schema-strata/adapter-typeorm';
 
 export const FIXTURES = fileURLToPath(new URL('../fixtures/typeorm/', import.meta.url));
@@ -21,6 +22,25 @@ export function readFixture(name: string): Record<string, string> {
   };
   walk(root);
   return out;
+}
+
+/**
+ * Write scripted commits as a git repository at `dir` (a null text removes the file) and give
+ * the commit ids in order and the whole tree of files of each commit, by id.
+ */
+export async function writeWithTrees(dir: string, commits: ScriptedCommit[]): Promise<{ ids: string[]; trees: Map<string, Record<string, string>> }> {
+  await writeRepository(dir, commits, { checkout: false });
+  const ids = execFileSync('git', ['-C', dir, 'rev-list', '--reverse', 'main'], { encoding: 'utf8' }).trim().split('\n');
+  const trees = new Map<string, Record<string, string>>();
+  const tree: Record<string, string> = {};
+  commits.forEach((c, i) => {
+    for (const [p, t] of Object.entries(c.files)) {
+      if (t === null) delete tree[p];
+      else tree[p] = t;
+    }
+    trees.set(ids[i]!, { ...tree });
+  });
+  return { ids, trees };
 }
 
 const blobOf = (text: string): string => createHash('sha1').update(text).digest('hex');

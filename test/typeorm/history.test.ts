@@ -1,12 +1,11 @@
-import { execFileSync } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { extractHistory, writeRepository, type History, type ScriptedCommit } from '@schema-strata/core';
+import { extractHistory, type History, type ScriptedCommit } from '@schema-strata/core';
 import { typeormAdapter } from '@schema-strata/adapter-typeorm';
 import { compareWithOracle, compile, load, oracleTables, typeormMetadata } from './oracle.js';
-import { runAdapter } from './harness.js';
+import { runAdapter, writeWithTrees } from './harness.js';
 
 /**
  * A synthetic history of a co-op's TypeORM entities, checked version by version against
@@ -228,15 +227,9 @@ beforeAll(async () => {
     message: s.message,
     files: s.files,
   }));
-  await writeRepository(dir, commits, { checkout: false });
-  const ids = execFileSync('git', ['-C', dir, 'rev-list', '--reverse', 'main'], { encoding: 'utf8' }).trim().split('\n');
-  const tree: Record<string, string> = {};
+  const { ids, trees } = await writeWithTrees(dir, commits);
+  for (const [id, t] of trees) treeAt.set(id, t);
   steps.forEach((s, i) => {
-    for (const [p, t] of Object.entries(s.files)) {
-      if (t === null) delete tree[p];
-      else tree[p] = t;
-    }
-    treeAt.set(ids[i]!, { ...tree });
     if (s.tag) tagOf.set(ids[i]!, s.tag);
   });
   history = await extractHistory({ repo: dir, adapter: typeormAdapter });

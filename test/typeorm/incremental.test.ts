@@ -1,11 +1,10 @@
-import { execFileSync } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { extractHistory, writeRepository, type ScriptedCommit } from '@schema-strata/core';
+import { extractHistory, type ScriptedCommit } from '@schema-strata/core';
 import { typeormAdapter } from '@schema-strata/adapter-typeorm';
-import { runAdapter } from './harness.js';
+import { runAdapter, writeWithTrees } from './harness.js';
 
 /**
  * The run's assembly takes over what did not change from version to version; at every version
@@ -98,18 +97,8 @@ function history(): ScriptedCommit[] {
 async function checkAgainstFresh(commits: ScriptedCommit[], minVersions: number): Promise<void> {
   const repo = mkdtempSync(join(tmpdir(), 'strata-typeorm-incremental-'));
   dirs.push(repo);
-  await writeRepository(repo, commits, { checkout: false });
+  const { trees } = await writeWithTrees(repo, commits);
   const h = await extractHistory({ repo, adapter: typeormAdapter });
-  const ids = execFileSync('git', ['-C', repo, 'rev-list', '--reverse', 'main'], { encoding: 'utf8' }).trim().split('\n');
-  const trees = new Map<string, Record<string, string>>();
-  const tree: Record<string, string> = {};
-  commits.forEach((c, i) => {
-    for (const [p, t] of Object.entries(c.files)) {
-      if (t === null) delete tree[p];
-      else tree[p] = t;
-    }
-    trees.set(ids[i]!, { ...tree });
-  });
   const canon = (t: object): string =>
     JSON.stringify(t, (k, v) => (k === 'origin' || k === 'id' ? undefined : v && typeof v === 'object' && Array.isArray(v) && (k === 'foreignKeys' || k === 'uniques') ? [...v].map((x) => JSON.stringify(x)).sort() : v));
   expect(h.versions.length).toBeGreaterThanOrEqual(minVersions);
