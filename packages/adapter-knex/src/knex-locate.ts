@@ -1,5 +1,5 @@
 import { posix } from 'node:path';
-import type { AdapterOptionValues, Diagnostic, Located, LocateRequest, TreeView } from '@schema-strata/core';
+import { BlobMemo, type AdapterOptionValues, type Diagnostic, type Located, type LocateRequest, type TreeView } from '@schema-strata/core';
 import type { Val } from './knex-facts.js';
 import { isArr, isObj, member, parseKnexSource } from './knex-parse.js';
 import { knexOptions } from './knex-config.js';
@@ -217,33 +217,20 @@ export function scanImports(text: string): string[] {
 }
 
 // memos by blob id: the same text always gives the same answer
-const importMemo = new Map<string, string[]>();
-const configMemo = new Map<string, Val | null>();
-const migrationMemo = new Map<string, boolean>();
+const importMemo = new BlobMemo<string[]>();
+const configMemo = new BlobMemo<Val | null>();
+const migrationMemo = new BlobMemo<boolean>();
 
 async function importsOf(tree: TreeView, path: string): Promise<string[]> {
-  const blob = tree.blob(path);
-  if (!blob) return [];
-  let specs = importMemo.get(blob);
-  if (!specs) {
-    const text = await tree.read(path);
-    specs = text === undefined ? [] : scanImports(text);
-    importMemo.set(blob, specs);
-  }
-  return specs;
+  return (await importMemo.of(tree, path, (text) => (text === undefined ? [] : scanImports(text)))) ?? [];
 }
 
 async function knexfileConfig(tree: TreeView, path: string): Promise<Val | null> {
-  const blob = tree.blob(path);
-  if (!blob) return null;
-  let c = configMemo.get(blob);
-  if (c === undefined) {
-    const text = await tree.read(path);
+  const config = await configMemo.of(tree, path, (text) => {
     const parsed = text === undefined ? null : parseKnexSource(text);
-    c = parsed && parsed.ok ? (parsed.facts.config ?? null) : null;
-    configMemo.set(blob, c);
-  }
-  return c;
+    return parsed && parsed.ok ? (parsed.facts.config ?? null) : null;
+  });
+  return config ?? null;
 }
 
 /**
@@ -251,15 +238,12 @@ async function knexfileConfig(tree: TreeView, path: string): Promise<Val | null>
  * and uses a Knex builder. Migrations of other tools (a query runner, a query interface) do not.
  */
 async function looksLikeKnexMigration(tree: TreeView, path: string): Promise<boolean> {
-  const blob = tree.blob(path);
-  if (!blob) return false;
-  let v = migrationMemo.get(blob);
-  if (v === undefined) {
-    const text = (await tree.read(path)) ?? '';
-    v = /\bup\b/.test(text) && (/\.schema\s*\.\s*\w+\s*\(/.test(text) || /\bknex\b/.test(text)) && !/\bqueryRunner\b|\bqueryInterface\b/.test(text);
-    migrationMemo.set(blob, v);
-  }
-  return v;
+  const looks = await migrationMemo.of(
+    tree,
+    path,
+    (text = '') => /\bup\b/.test(text) && (/\.schema\s*\.\s*\w+\s*\(/.test(text) || /\bknex\b/.test(text)) && !/\bqueryRunner\b|\bqueryInterface\b/.test(text),
+  );
+  return looks ?? false;
 }
 
 /** The files the given ones import from the project, transitively (at most `limit` files). */

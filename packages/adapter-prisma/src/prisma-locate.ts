@@ -1,6 +1,6 @@
 import { createRequire } from 'node:module';
 import { posix } from 'node:path';
-import type { Located, LocateRequest, TreeView } from '@schema-strata/core';
+import { BlobMemo, type Located, type LocateRequest, type TreeView } from '@schema-strata/core';
 
 const CONFIG_NAMES = ['prisma.config.ts', 'prisma.config.mts', 'prisma.config.cts', 'prisma.config.js', 'prisma.config.mjs', 'prisma.config.cjs'];
 
@@ -18,7 +18,7 @@ function ts(): TsModule {
 }
 
 /** Memo of the schema path a config text states, by blob id (configs rarely change). */
-const configMemo = new Map<string, string | null>();
+const configMemo = new BlobMemo<string | null>();
 const packageMemo = new Map<string, string | null>();
 
 /**
@@ -142,12 +142,7 @@ async function resolveIn(tree: TreeView, dir: string): Promise<Resolution | null
     const blob = tree.blob(path);
     if (!blob) continue;
     consulted.push(path);
-    let schema = configMemo.get(blob);
-    if (schema === undefined) {
-      const text = await tree.read(path);
-      schema = text === undefined ? null : schemaFromConfig(text);
-      configMemo.set(blob, schema);
-    }
+    const schema = await configMemo.of(tree, path, (text) => (text === undefined ? null : schemaFromConfig(text)));
     if (schema) {
       const files = filesAt(tree, at(schema));
       if (files.length > 0) return { files, consulted };

@@ -1,5 +1,5 @@
 import { posix } from 'node:path';
-import type { Located, LocateRequest, TreeView } from '@schema-strata/core';
+import { BlobMemo, type Located, type LocateRequest, type TreeView } from '@schema-strata/core';
 import { readSettings, TYPEORM_DECORATORS } from './typeorm-config.js';
 import { globMatcher, isDeclarationFile, ModuleResolver, nearestTsconfig, SOURCE_FILE, tsconfigView, type TsconfigView } from './typeorm-modules.js';
 import { isOrmconfigPath, isTsconfigPath, parseTypeormFile, type ConfigFact, type TsconfigFact, type TypeormFileFacts, type Value } from './typeorm-parse.js';
@@ -61,34 +61,24 @@ function scanText(text: string, entityDecorators: readonly string[]): Scan {
 }
 
 const scanMemo = new Map<string, Map<string, Scan>>();
-const factsMemo = new Map<string, TypeormFileFacts | null>();
-const tsconfigMemo = new Map<string, TsconfigFact | null>();
+const factsMemo = new BlobMemo<TypeormFileFacts | null>();
+const tsconfigMemo = new BlobMemo<TsconfigFact | null>();
 
 /** Parsed facts of a configuration file (locate reads these few files in full), by blob id. */
 async function factsOf(tree: TreeView, path: string): Promise<TypeormFileFacts | undefined> {
-  const blob = tree.blob(path);
-  if (!blob) return undefined;
-  let got = factsMemo.get(blob);
-  if (got === undefined) {
-    const text = await tree.read(path);
+  const facts = await factsMemo.of(tree, path, (text, blob) => {
     const r = text === undefined ? undefined : parseTypeormFile({ path, blob, text });
-    got = r && r.ok ? r.facts : null;
-    factsMemo.set(blob, got);
-  }
-  return got ?? undefined;
+    return r && r.ok ? r.facts : null;
+  });
+  return facts ?? undefined;
 }
 
 async function tsconfigFactOf(tree: TreeView, path: string): Promise<TsconfigFact | undefined> {
-  const blob = tree.blob(path);
-  if (!blob) return undefined;
-  let got = tsconfigMemo.get(blob);
-  if (got === undefined) {
-    const text = await tree.read(path);
+  const fact = await tsconfigMemo.of(tree, path, (text, blob) => {
     const r = text === undefined ? undefined : parseTypeormFile({ path, blob, text });
-    got = r && r.ok && r.facts.tsconfig ? r.facts.tsconfig : null;
-    tsconfigMemo.set(blob, got);
-  }
-  return got ?? undefined;
+    return r && r.ok && r.facts.tsconfig ? r.facts.tsconfig : null;
+  });
+  return fact ?? undefined;
 }
 
 /** The entity sources a data source's `entities` option names, evaluated statically (paths and class references). */
