@@ -20,22 +20,37 @@ export function defaultCacheDir(): string {
  * is read once at the start of a run; new records are appended in one write at its end.
  * A torn or foreign line is skipped, so a crash or two runs appending at once lose at most
  * the records they were writing.
+ *
+ * Records of a `deferred` kind are not parsed when the pack is read: their lines are kept by
+ * the record's `key` field and parsed only when `deferredRecord(key)` asks for one (a re-run
+ * needs few of them). Such a record must be written with `k` first and `key` second (as
+ * `add` does for an object literal `{ k, key, ... }`), so that the key can be read off the line.
  */
 export class RecordPack<R extends { k: string }> {
   private readonly file: string;
   private pendingLines: string[] = [];
   readonly loaded: R[] = [];
+  private readonly deferredLines = new Map<string, string>();
 
-  constructor(dir: string, namespace: string) {
+  constructor(dir: string, namespace: string, deferred: readonly string[] = []) {
     mkdirSync(dir, { recursive: true });
     this.file = join(dir, `${namespace}.jsonl`);
+    const prefixes = deferred.map((k) => `{"k":${JSON.stringify(k)},"key":"`);
     if (existsSync(this.file)) {
       const text = readFileSync(this.file, 'utf8');
       let start = 0;
-      while (start < text.length) {
+      lines: while (start < text.length) {
         let end = text.indexOf('\n', start);
         if (end < 0) end = text.length;
         if (end > start) {
+          for (const prefix of prefixes) {
+            if (!text.startsWith(prefix, start)) continue;
+            const keyStart = start + prefix.length;
+            const keyEnd = text.indexOf('"', keyStart);
+            if (keyEnd > keyStart && keyEnd < end) this.deferredLines.set(text.slice(keyStart, keyEnd), text.slice(start, end));
+            start = end + 1;
+            continue lines;
+          }
           try {
             const rec = JSON.parse(text.slice(start, end)) as R;
             if (rec && typeof rec.k === 'string') this.loaded.push(rec);
@@ -45,6 +60,18 @@ export class RecordPack<R extends { k: string }> {
         }
         start = end + 1;
       }
+    }
+  }
+
+  /** The deferred record with this key, parsed now; undefined when absent or torn. */
+  deferredRecord(key: string): R | undefined {
+    const line = this.deferredLines.get(key);
+    if (line === undefined) return undefined;
+    try {
+      const rec = JSON.parse(line) as R;
+      return rec && typeof rec.k === 'string' ? rec : undefined;
+    } catch {
+      return undefined;
     }
   }
 

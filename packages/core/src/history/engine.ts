@@ -21,6 +21,7 @@ import { SetKeys, sameRefs, sortedUnique } from './set-key.js';
 import { pathLineage } from './path-lineage.js';
 import { packOrigins, SnapshotStore, unpackOrigins, type BuiltSnapshot, type PackedOrigins, type TableOrigins } from './snapshot-store.js';
 import type { Progress } from '../util/progress.js';
+import { VERSION } from '../version.js';
 
 export type VersionStatus = 'ok' | 'no change' | 'partial' | 'carried' | 'absent';
 
@@ -98,10 +99,14 @@ export interface History {
 
 export const DEFAULT_MAX_FILE_BYTES = 5 * 1024 * 1024;
 
+/** Layout of the disk cache's records; bump it when they change. */
+const PACK_FORMAT = 2;
+
 interface CachedUnit {
   k: 's';
   key: string;
   tables?: string[];
+  /** The origins of `tables`: in the unit's own record in packs written before they had `o` records. */
   origins?: PackedOrigins;
   /** In memory only (never written): the origins as the adapter gave them. */
   rawOrigins?: TableOrigins[];
@@ -113,14 +118,25 @@ interface CachedUnit {
 interface CachedTable {
   k: 't';
   h: string;
+  /** Meaning hash (absent in packs written before it was stored). */
+  m?: string;
   t: Table;
+}
+/**
+ * The origins of a unit's tables, in a record of their own that is parsed only when needed: a
+ * run needs them only for the versions where a table first appears.
+ */
+interface CachedOrigins {
+  k: 'o';
+  key: string;
+  origins: PackedOrigins;
 }
 interface CachedFacts {
   k: 'f';
   b: string;
   r: FileFacts<unknown>;
 }
-type CacheRecord = CachedUnit | CachedTable | CachedFacts;
+type CacheRecord = CachedUnit | CachedTable | CachedFacts | CachedOrigins;
 
 /** The options that change an adapter's output, in a stable form: part of every cache key. */
 export function outputOptions(adapter: SchemaAdapter, values: AdapterOptionValues): Record<string, unknown> {
@@ -358,17 +374,23 @@ interface BuildContext {
 async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
   const { adapter, options, reader } = ctx;
   const optionsKey = canonicalJson(outputOptions(adapter, options));
-  const namespace = `${safeName(adapter.name)}-${safeName(adapter.version)}-${hashText(optionsKey).slice(0, 12)}`;
-  const pack = ctx.cacheDir ? new RecordPack<CacheRecord>(ctx.cacheDir, namespace) : null;
+  // core's own version and pack format are in the key too: what core stores (meaning hashes,
+  // say) is only valid for the core that computed it
+  const namespace = `${safeName(adapter.name)}-${safeName(adapter.version)}-${hashText(`${PACK_FORMAT}|${VERSION}|${optionsKey}`).slice(0, 12)}`;
+  const pack = ctx.cacheDir ? new RecordPack<CacheRecord>(ctx.cacheDir, namespace, ['o']) : null;
 
   const store = new SnapshotStore();
   const unitCache = new Map<string, CachedUnit>();
   const factsCache = new Map<string, FileFacts<unknown>>();
   const cachedTables = new Map<string, Table>();
+  const cachedMeanings = new Map<string, string>();
   if (pack) {
     for (const r of pack.loaded) {
       if (r.k === 's') unitCache.set(r.key, r);
-      else if (r.k === 't') cachedTables.set(r.h, r.t);
+      else if (r.k === 't') {
+        cachedTables.set(r.h, r.t);
+        if (r.m) cachedMeanings.set(r.h, r.m);
+      }
       else if (r.k === 'f') factsCache.set(r.b, r.r);
     }
   }
@@ -518,14 +540,12 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
           for (const st of made.newTables) {
             if (!cachedTables.has(st.hash)) {
               cachedTables.set(st.hash, st.table);
-              pack?.add({ k: 't', h: st.hash, t: st.table });
+              pack?.add({ k: 't', h: st.hash, m: st.meaningHash, t: st.table });
             }
           }
           unit = {
             k: 's', key,
             tables: made.snapshot.tables.map((t) => t.hash),
-            // packed only for the disk cache; this run reads them unpacked
-            ...(pack ? { origins: packOrigins(made.origins) } : {}),
             rawOrigins: made.origins,
             views: made.snapshot.views,
             d: [...readDiagnostics, ...result.diagnostics],
@@ -534,8 +554,10 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
         }
         unitCache.set(key, unit);
         if (pack) {
-          const { rawOrigins: _raw, ...stored } = unit;
+          const { rawOrigins, origins: _packed, ...stored } = unit;
           pack.add(stored);
+          // packed only for the disk cache; this run reads them unpacked
+          if (rawOrigins) pack.add({ k: 'o', key, origins: packOrigins(rawOrigins) });
         }
       }
       diagnostics.push(...unit.d);
@@ -553,10 +575,14 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
           continue;
         }
       } else {
-        const tables = unit.tables!.map((h) => store.getTable(h) ?? store.internKnown(h, cachedTables.get(h)!));
+        const tables = unit.tables!.map((h) => store.getTable(h) ?? store.internKnown(h, cachedTables.get(h)!, cachedMeanings.get(h)));
         snapshot = store.assembleSnapshot(tables, unit.views ?? []);
         const existing = snapshots.get(snapshot.hash);
         if (existing) snapshot = existing;
+        if (!unit.rawOrigins && !unit.origins && pack && unit.tables!.some((h) => !tableOrigins.has(h))) {
+          const rec = pack.deferredRecord(key);
+          if (rec?.k === 'o') unit.origins = rec.origins;
+        }
         unit.tables!.forEach((h, i) => {
           if (!tableOrigins.has(h)) {
             tableOrigins.set(h, unit!.rawOrigins ? unit!.rawOrigins[i] ?? {} : unit!.origins ? unpackOrigins(unit!.origins, i) : {});

@@ -140,11 +140,11 @@ export class SnapshotStore {
     return this.tables.get(hash);
   }
 
-  /** Add a stored table (from the cache) whose storage hash is known. */
-  internKnown(hash: string, table: Table): StoredTable {
+  /** Add a stored table (from the cache) whose storage hash, and perhaps meaning hash, is known. */
+  internKnown(hash: string, table: Table, meaningHash?: string): StoredTable {
     let st = this.tables.get(hash);
     if (!st) {
-      st = { hash, meaningHash: contentHash(canonicalJson(tableMeaning(table))), table };
+      st = { hash, meaningHash: meaningHash ?? contentHash(canonicalJson(tableMeaning(table))), table };
       this.tables.set(hash, st);
     }
     return st;
