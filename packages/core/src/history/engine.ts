@@ -403,6 +403,11 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
 
   const stats = { assembled: 0, assembleCacheHits: 0, filesParsed: 0, fileCacheHits: 0 };
   const lastGood = new Map<string, { blob: string; facts: unknown }>();
+  /**
+   * A file that parsed, by its FileRef (one object while its path keeps that blob): the input
+   * handed to the adapter, the same object in every version, and the file's diagnostics.
+   */
+  const inputOf = new WeakMap<FileRef, { input: AssembleFile<unknown>; diagnostics: Diagnostic[] }>();
   const versions: VersionRecord[] = [];
   const snapshots = new Map<string, BuiltSnapshot>();
   const tableOrigins = new Map<string, TableOrigins>();
@@ -474,7 +479,17 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
           }
         }
       } else {
+        const plain: FileRef[] = [];
         for (const f of cand.files) {
+          // the same file as in an earlier version: its input object is reused
+          const known = inputOf.get(f);
+          if (known) {
+            stats.fileCacheHits++;
+            for (const d of known.diagnostics) diagnostics.push(d);
+            inputs.push(known.input);
+            plain.push(f);
+            continue;
+          }
           let result = factsCache.get(f.blob);
           if (result) stats.fileCacheHits++;
           else {
@@ -489,10 +504,14 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
               diagnostics.push(readDiagnostic(f.path, got));
             }
           }
-          if (result) for (const d of result.diagnostics ?? []) diagnostics.push({ ...d, file: d.file ?? f.path });
+          const fileDiagnostics = (result?.diagnostics ?? []).map((d) => ({ ...d, file: d.file ?? f.path }));
+          diagnostics.push(...fileDiagnostics);
           if (result && result.ok) {
             lastGood.set(f.path, { blob: f.blob, facts: result.facts });
-            inputs.push({ path: f.path, blob: f.blob, facts: result.facts });
+            const input = { path: f.path, blob: f.blob, facts: result.facts };
+            inputOf.set(f, { input, diagnostics: fileDiagnostics });
+            inputs.push(input);
+            plain.push(f);
             continue;
           }
           stale = true;
@@ -512,12 +531,8 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
           }
         }
         // the set of inputs: plain (path, blob) pairs, plus the stale ones with the blob whose facts they use
-        const plain: FileRef[] = [];
         const extra: string[] = [];
-        for (const x of inputs) {
-          if (x.stale) extra.push(`stale\u0000${x.path}\u0000${x.blob}\u0000${lastGood.get(x.path)?.blob ?? ''}`);
-          else plain.push(ctx.keys.ref(x.path, x.blob));
-        }
+        for (const x of inputs) if (x.stale) extra.push(`stale\u0000${x.path}\u0000${x.blob}\u0000${lastGood.get(x.path)?.blob ?? ''}`);
         for (const m of missing) extra.push(`missing\u0000${m}`);
         key = ctx.keys.key(plain, extra);
       }

@@ -30,18 +30,58 @@ export class SetKeys {
     return d;
   }
 
-  /** Key of a set of file references, plus optional extra members given as text. */
+  /** The last list keyed, and the XOR of its members' digests. */
+  private last: { files: readonly FileRef[]; acc: Uint32Array } | null = null;
+
+  /**
+   * Key of a set of file references, plus optional extra members given as text. The key is
+   * worked out from the last list keyed: a walk over both lists side by side looks only at the
+   * members that are not the same object at the same point, so consecutive versions (lists
+   * sorted by path that share most members) cost what changed between them.
+   */
   key(files: readonly FileRef[], extra: readonly string[] = []): string {
-    const acc = new Uint32Array(8);
-    for (const f of files) {
-      const d = this.digest(f);
-      for (let i = 0; i < 8; i++) acc[i]! ^= d[i]!;
-    }
+    const acc = this.membersDigest(files);
     for (const e of extra) {
       const d = words(`\u0003${e}`);
       for (let i = 0; i < 8; i++) acc[i]! ^= d[i]!;
     }
     return Buffer.from(acc.buffer).toString('hex');
+  }
+
+  /**
+   * XOR of the digests of `files`, from the last list's: every member of either list that the
+   * walk does not pair with the same object in the other is XORed in once. A pair cancels out
+   * of both, so the result is right whatever the order; sorted lists pair up the most.
+   */
+  private membersDigest(files: readonly FileRef[]): Uint32Array {
+    const xor = (acc: Uint32Array, f: FileRef): void => {
+      const d = this.digest(f);
+      for (let i = 0; i < 8; i++) acc[i]! ^= d[i]!;
+    };
+    const a = this.last?.files ?? [];
+    const acc = this.last ? this.last.acc.slice() : new Uint32Array(8);
+    let i = 0;
+    let j = 0;
+    while (i < a.length || j < files.length) {
+      const x = a[i];
+      const y = files[j];
+      if (x === y) {
+        i++;
+        j++;
+      } else if (y === undefined || (x !== undefined && x.path <= y.path)) {
+        xor(acc, x!);
+        i++;
+        if (y !== undefined && x!.path === y.path) {
+          xor(acc, y);
+          j++;
+        }
+      } else {
+        xor(acc, y);
+        j++;
+      }
+    }
+    this.last = { files, acc: acc.slice() };
+    return acc;
   }
 }
 
@@ -67,5 +107,11 @@ export function sortedUnique(xs: readonly string[]): string[] {
       break;
     }
   }
-  return ok ? (xs as string[]) : [...new Set(xs)].sort();
+  if (ok) return xs as string[];
+  // a sort that is quick on nearly sorted input, then equal neighbours dropped
+  const sorted = xs.slice().sort();
+  let n = 0;
+  for (let i = 0; i < sorted.length; i++) if (i === 0 || sorted[i] !== sorted[n - 1]) sorted[n++] = sorted[i]!;
+  sorted.length = n;
+  return sorted;
 }
