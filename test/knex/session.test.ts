@@ -51,6 +51,32 @@ describe('the fold across versions', () => {
     }
   });
 
+  it('after an edit, takes over the later migrations that did not read what the edit changed', () => {
+    const m = (name: string, body: string) => ({ path: `migrations/${name}`, blob: `${name}:${body}`, facts: parsed(`exports.up = async (knex) => { ${body} };\n`) });
+    const a = m('001.js', "await knex.schema.createTable('a', (t) => { t.increments('id'); t.string('x', 10); });");
+    const d = m('002.js', "await knex.schema.createTable('d', (t) => { t.increments('id'); t.text('note'); });");
+    const b = m('003.js', "await knex.schema.alterTable('a', (t) => { t.string('y'); });");
+    const e = m('004.js', "await knex.schema.alterTable('d', (t) => { t.integer('n').notNullable().defaultTo(3); });");
+    const a2 = m('001.js', "await knex.schema.createTable('a', (t) => { t.increments('id'); t.string('x', 20); });");
+    const r = m('005.js', "await knex.schema.alterTable('d', (t) => { t.renameColumn('note', 'remark'); });");
+    const session = new KnexSession(knexOptions({}));
+    const fresh = (files: ReturnType<typeof m>[]) => new KnexSession(knexOptions({})).assemble({ files, missing: [] });
+    // [files, replayed, taken over]
+    const runs: Array<[ReturnType<typeof m>[], number, number]> = [
+      [[a, d, b, e], 4, 0],
+      [[a2, d, b, e], 2, 2], // a and b replayed (b alters a); d and e did not look at a
+      [[a2, b, e], 1, 1], // d gone: b (reads a) is taken over, e (reads d, now missing) replayed
+      [[a2, d, b, e, r], 3, 1], // d back in the middle, r new: d, e and r replayed, b taken over
+      [[a, d, b, e, r], 3, 2], // a, and b that reads it, replayed; r renames a column, which scans every table
+    ];
+    for (const [files, replayed, taken] of runs) {
+      const before = [session.replayed, session.carriedOver];
+      const got = session.assemble({ files, missing: [] });
+      expect([session.replayed - before[0]!, session.carriedOver - before[1]!], files.map((f) => f.blob).join(' ')).toEqual([replayed, taken]);
+      expect(got).toEqual(fresh(files));
+    }
+  });
+
   it('gives at every commit the schema that a fresh build of that commit gives (core schemaAt)', async () => {
     for (const [i, commit] of commitIds.entries()) {
       const v = history.versions.find((x) => x.commit === commit)!;

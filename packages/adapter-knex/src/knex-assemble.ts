@@ -10,8 +10,10 @@ import type {
 import { canonicalJson, contentHash } from '@schema-strata/core';
 import type { KnexFacts } from './knex-facts.js';
 import { knexOptions, type KnexOptions } from './knex-config.js';
-import { isKnexfile, knexfileSettings, migrationsIn, resolveImport } from './knex-locate.js';
-import { EMPTY_STATE, Replay, type FileContext, type ReplayCounters, type SchemaState, type TableState, type ViewState } from './knex-replay.js';
+import { isKnexfile, knexfileSettings, migrationIndices, resolveImport } from './knex-locate.js';
+import { PMap } from './knex-pmap.js';
+import { EMPTY_STATE, Replay, type FileContext, type ReplayCounters, type SchemaState, type StateAccess, type TableState, type ViewState } from './knex-replay.js';
+import { untouchedBy, type MapLike } from './knex-track.js';
 import { dialectOf, type Dialect } from './knex-types.js';
 
 /** One migration (or init file) of a version, in replay order. */
@@ -55,9 +57,16 @@ function baseName(p: string): string {
 }
 const entryMemo = new WeakMap<FileContext, PlanEntry>();
 const contexts = new WeakMap<KnexFacts, Map<string, FileContext>>();
+const contextOfInput = new WeakMap<object, FileContext>();
 
-/** The replay's view of a file; reused across versions while its facts are the same and it imports nothing. */
-function fileContext(path: string, facts: KnexFacts, paths: { has(p: string): boolean }): FileContext {
+type InputFile = AssembleInput<KnexFacts>['files'][number] & { facts: KnexFacts };
+
+/**
+ * The replay's view of a file; reused across versions while its facts are the same and it
+ * imports nothing (core hands the same input object while a path keeps its blob).
+ */
+function fileContext(file: InputFile, paths: { has(p: string): boolean }): FileContext {
+  const { path, facts } = file;
   if (facts.imports.length > 0) {
     const imports = new Map<string, string>();
     for (const spec of facts.imports) {
@@ -66,16 +75,19 @@ function fileContext(path: string, facts: KnexFacts, paths: { has(p: string): bo
     }
     return { path, facts, imports };
   }
+  let ctx = contextOfInput.get(file);
+  if (ctx) return ctx;
   let byPath = contexts.get(facts);
   if (!byPath) {
     byPath = new Map();
     contexts.set(facts, byPath);
   }
-  let ctx = byPath.get(path);
+  ctx = byPath.get(path);
   if (!ctx) {
     ctx = { path, facts, imports: NO_IMPORTS };
     byPath.set(path, ctx);
   }
+  contextOfInput.set(file, ctx);
   return ctx;
 }
 
@@ -104,12 +116,13 @@ export class FileLookup {
     return undefined;
   }
 
-  private at(i: number): FileContext | undefined {
+  /** The context of the file at this position of the input. */
+  at(i: number): FileContext | undefined {
     let ctx = this.made.get(i);
     if (!ctx) {
       const f = this.input[i]!;
       if (!f.facts) return undefined;
-      ctx = fileContext(f.path, f.facts, this.paths);
+      ctx = fileContext(f as InputFile, this.paths);
       this.made.set(i, ctx);
     }
     return ctx;
@@ -182,21 +195,22 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
   }
 
   // the migrations and the directory each comes from
-  const found: Array<{ path: string; dir: number; name: string }> = [];
+  // `at`: the file's position in the input (-1: a missing file; undefined: look it up by path)
+  const found: Array<{ path: string; dir: number; name: string; at?: number }> = [];
   const several = (settings?.directories.length ?? 0) > 1 || !settings;
   const taken = new Set<string>([...initSet, ...(knexfile ? [knexfile.path] : [])]);
-  const take = (p: string, dir: number): void => {
+  const take = (p: string, dir: number, at?: number): void => {
     if (several || taken.size > 0) {
       if (taken.has(p)) return;
       if (several) taken.add(p);
     }
-    found.push({ path: p, dir, name: baseName(p) });
+    found.push({ path: p, dir, name: baseName(p), ...(at !== undefined ? { at } : {}) });
   };
   if (settings) {
     const everything = input.missing.length > 0 ? [...all, ...input.missing] : all;
     settings.directories.forEach((dir, di) => {
-      const got = migrationsIn(everything, dir, settings.loadExtensions);
-      for (const p of got.files) take(p, di);
+      const got = migrationIndices(everything, dir, settings.loadExtensions);
+      for (const i of got.indices) take(everything[i]!, di, i < input.files.length ? i : -1);
       if (got.fromSources) {
         diagnostics.push({ severity: 'info', code: 'knex/load-extensions', file: knexfile!.path, message: `${dir}: loadExtensions names only compiled files, which are not in the repository; the .ts sources are replayed` });
       }
@@ -256,8 +270,8 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
     }
     return keys.sort().join(',');
   };
-  const entry = (path: string, role: PlanEntry['role']): PlanEntry => {
-    const file = files.get(path);
+  const entry = (path: string, role: PlanEntry['role'], at?: number): PlanEntry => {
+    const file = at === undefined ? files.get(path) : at >= 0 ? files.at(at) : undefined;
     if (file && file.facts.imports.length === 0) {
       // a file that imports nothing is the same entry in every version (its context is reused)
       let e = entryMemo.get(file);
@@ -270,7 +284,7 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
     const own = file ? factsKey(file.facts) : `missing:${blobOf(path)}`;
     return { path, role, ...(file ? { file } : {}), key: `${role}|${path}|${own}|${file ? depKey(path) : ''}` };
   };
-  const entries = [...init.map((p) => entry(p, 'init')), ...found.map((f) => entry(f.path, 'migration'))];
+  const entries = [...init.map((p) => entry(p, 'init')), ...found.map((f) => entry(f.path, 'migration', f.at))];
   return { dialect, entries, files, diagnostics };
 }
 
@@ -278,12 +292,55 @@ interface Step {
   key: string;
   path: string;
   state: SchemaState;
+  /** What the migration read and wrote of the state before it (see `KnexSession`). */
+  access: StateAccess;
   diagnostics: Diagnostic[];
   counters: ReplayCounters;
   missing: boolean;
   role: PlanEntry['role'];
   /** Diagnostics and counts of this step and every step before it. */
   upTo: { diagnostics: Diagnostic[]; counters: VersionCounters };
+}
+
+const PARTS = ['tables', 'views', 'enums', 'moved'] as const;
+type Part = (typeof PARTS)[number];
+type Changed = Record<Part, Set<string>>;
+
+/** Deep equality of plain data (the replay's tables, views, enum values). */
+function sameData(a: unknown, b: unknown): boolean {
+  if (a === b) return true;
+  if (typeof a !== 'object' || typeof b !== 'object' || a === null || b === null) return false;
+  if (Array.isArray(a)) {
+    if (!Array.isArray(b) || a.length !== b.length) return false;
+    for (let i = 0; i < a.length; i++) if (!sameData(a[i], b[i])) return false;
+    return true;
+  }
+  if (Array.isArray(b)) return false;
+  const ka = Object.keys(a);
+  if (ka.length !== Object.keys(b).length) return false;
+  for (const k of ka) {
+    if (!Object.prototype.hasOwnProperty.call(b, k)) return false;
+    if (!sameData((a as Record<string, unknown>)[k], (b as Record<string, unknown>)[k])) return false;
+  }
+  return true;
+}
+
+/** A copy of a state with the writes of a step of another fold applied (the values that step left). */
+function withWrites(state: SchemaState, step: Step): SchemaState {
+  let out = state;
+  for (const part of PARTS) {
+    const written = step.access[part].written;
+    if (written.size === 0) continue;
+    const from = step.state[part] as MapLike<unknown>;
+    const to = (part === 'tables' ? new PMap(state.tables) : new Map(state[part] as Map<string, unknown>)) as MapLike<unknown>;
+    for (const k of written) {
+      const v = from.get(k);
+      if (v === undefined) to.delete(k);
+      else to.set(k, v);
+    }
+    out = { ...out, [part]: to };
+  }
+  return out;
 }
 
 interface VersionCounters {
@@ -346,14 +403,18 @@ function toView(v: ViewState): NonNullable<SnapshotInput['views']>[number] {
 
 /**
  * The fold of one run: the schema after each migration of the last version assembled is kept, so
- * that a version which only appends migrations replays just those, and a version whose old
- * migration was edited replays from that migration on (the longest common prefix of entries).
+ * that a version which only appends migrations replays just those. A version whose old migration
+ * was edited (or removed, or which gained one in the middle) replays from that migration on, but
+ * a later migration that read none of the tables (views, enum types) the change touched is not
+ * replayed again: it would do the same, so what it wrote is copied over (`Replay.access`).
  */
 export class KnexSession implements AdapterSession<KnexFacts> {
   private steps: Step[] = [];
   private dialect: Dialect | null = null;
   /** Migrations replayed by this session (for tests and benchmarks). */
   replayed = 0;
+  /** Migrations of a refold taken over from the previous fold without replaying them. */
+  carriedOver = 0;
 
   constructor(private readonly options: KnexOptions) {}
 
@@ -363,33 +424,94 @@ export class KnexSession implements AdapterSession<KnexFacts> {
       this.steps = [];
       this.dialect = plan.dialect;
     }
+    const steps = this.steps;
     let i = 0;
-    while (i < this.steps.length && i < plan.entries.length && this.steps[i]!.key === plan.entries[i]!.key) i++;
-    this.steps.length = i;
-    let state = i > 0 ? this.steps[i - 1]!.state : EMPTY_STATE;
+    while (i < steps.length && i < plan.entries.length && steps[i]!.key === plan.entries[i]!.key) i++;
+    // the old fold's steps from the first difference on, to match against this version's entries
+    const rest = steps.slice(i);
+    steps.length = i;
+    let state = i > 0 ? steps[i - 1]!.state : EMPTY_STATE;
+    // `base`: the old fold's state at the point the new fold has reached; `changed`: per part of
+    // the state, the keys whose values may differ between the two (a superset of the differences)
+    let base = state;
+    const changed: Changed = { tables: new Set(), views: new Set(), enums: new Set(), moved: new Set() };
+    let next = 0;
+    let byKey: Map<string, number> | null = null;
     for (let j = i; j < plan.entries.length; j++) {
       const e = plan.entries[j]!;
+      // the old step of the same entry, if it is still ahead of the old fold's point
+      let m = -1;
+      if (next < rest.length) {
+        if (rest[next]!.key === e.key) m = next;
+        else {
+          byKey ??= new Map(rest.map((st, k) => [st.key, k]));
+          const k = byKey.get(e.key);
+          if (k !== undefined && k > next) m = k;
+        }
+      }
+      if (m >= 0) {
+        // old steps passed over are gone from this version: what they wrote differs now
+        for (let k = next; k < m; k++) for (const part of PARTS) for (const key of rest[k]!.access[part].written) changed[part].add(key);
+        base = m > 0 ? rest[m - 1]!.state : base;
+        next = m + 1;
+        const old = rest[m]!;
+        if (PARTS.every((part) => untouchedBy(old.access[part], changed[part]))) {
+          state = withWrites(state, old);
+          for (const part of PARTS) for (const key of old.access[part].written) changed[part].delete(key);
+          base = old.state;
+          this.carriedOver++;
+          steps.push({ ...old, state, upTo: this.upTo(j, old.role, old.missing, old.diagnostics, old.counters) });
+          continue;
+        }
+      }
       const replay = new Replay(state, plan.dialect, plan.files);
       if (e.file) {
         replay.runFile(e.file, e.role);
         this.replayed++;
       }
-      state = replay.state();
-      const before = j > 0 ? this.steps[j - 1]!.upTo : { diagnostics: [], counters: NO_COUNTS };
-      const c = replay.counters;
-      const upTo = {
-        diagnostics: replay.diagnostics.length > 0 ? [...before.diagnostics, ...replay.diagnostics] : before.diagnostics,
-        counters: {
-          migrations: before.counters.migrations + (e.role === 'migration' ? 1 : 0),
-          skippedMigrations: before.counters.skippedMigrations + (e.file ? 0 : 1),
-          rawStatements: before.counters.rawStatements + c.rawStatements,
-          rawSchemaStatements: before.counters.rawSchemaStatements + c.rawSchemaStatements,
-          unresolved: before.counters.unresolved + c.unresolved,
-        },
-      };
-      this.steps.push({ key: e.key, path: e.path, state, diagnostics: replay.diagnostics, counters: c, missing: !e.file, role: e.role, upTo });
+      const after = replay.state();
+      const access = replay.access();
+      const target = m >= 0 ? rest[m]! : null;
+      const targetState = target ? target.state : base;
+      for (const part of PARTS) {
+        const keys = new Set([...changed[part], ...access[part].written, ...(target ? target.access[part].written : [])]);
+        const now = after[part] as MapLike<unknown>;
+        const then = targetState[part] as MapLike<unknown>;
+        const differ = new Set<string>();
+        for (const k of keys) {
+          const a = now.get(k);
+          const b = then.get(k);
+          if (a === b) continue;
+          // written anew with the same content: the old fold's object is kept, so that later
+          // steps (and the output's memo) see no difference
+          if (a !== undefined && b !== undefined && access[part].written.has(k) && sameData(a, b)) now.set(k, b);
+          else differ.add(k);
+        }
+        changed[part] = differ;
+      }
+      base = targetState;
+      state = after;
+      steps.push({
+        key: e.key, path: e.path, state, access, diagnostics: replay.diagnostics, counters: replay.counters, missing: !e.file, role: e.role,
+        upTo: this.upTo(j, e.role, !e.file, replay.diagnostics, replay.counters),
+      });
     }
     return this.result(state, plan);
+  }
+
+  /** The running totals after step `j` of the fold being built (steps before it are in place). */
+  private upTo(j: number, role: PlanEntry['role'], missing: boolean, diagnostics: Diagnostic[], c: ReplayCounters): Step['upTo'] {
+    const before = j > 0 ? this.steps[j - 1]!.upTo : { diagnostics: [], counters: NO_COUNTS };
+    return {
+      diagnostics: diagnostics.length > 0 ? [...before.diagnostics, ...diagnostics] : before.diagnostics,
+      counters: {
+        migrations: before.counters.migrations + (role === 'migration' ? 1 : 0),
+        skippedMigrations: before.counters.skippedMigrations + (missing ? 1 : 0),
+        rawStatements: before.counters.rawStatements + c.rawStatements,
+        rawSchemaStatements: before.counters.rawSchemaStatements + c.rawSchemaStatements,
+        unresolved: before.counters.unresolved + c.unresolved,
+      },
+    };
   }
 
   /** The schema after each entry of the last version assembled: the init files, then the migrations in order. */

@@ -166,10 +166,17 @@ export function knexfileSettings(config: Val | undefined, knexfilePath: string, 
  * its `.ts` sources instead (with a note).
  */
 export function migrationsIn(paths: readonly string[], dir: string, loadExtensions: readonly string[]): { files: string[]; fromSources: boolean } {
+  const got = migrationIndices(paths, dir, loadExtensions);
+  return { files: got.indices.map((i) => paths[i]!), fromSources: got.fromSources };
+}
+
+/** As `migrationsIn`, but the positions of the migrations in `paths`. */
+export function migrationIndices(paths: readonly string[], dir: string, loadExtensions: readonly string[]): { indices: number[]; fromSources: boolean } {
   const prefix = dir === '' ? '' : dir + '/';
-  const files: string[] = [];
-  const sources: string[] = [];
-  for (const p of paths) {
+  const files: number[] = [];
+  const sources: number[] = [];
+  for (let i = 0; i < paths.length; i++) {
+    const p = paths[i]!;
     if (!p.startsWith(prefix) || p.indexOf('/', prefix.length) >= 0) continue;
     if (p.endsWith('ts') && /\.d\.[cm]?ts$/.test(p)) continue;
     let loaded = false;
@@ -179,11 +186,11 @@ export function migrationsIn(paths: readonly string[], dir: string, loadExtensio
         break;
       }
     }
-    if (loaded) files.push(p);
-    else if (p.endsWith('.ts') || p.endsWith('.mts') || p.endsWith('.cts')) sources.push(p);
+    if (loaded) files.push(i);
+    else if (p.endsWith('.ts') || p.endsWith('.mts') || p.endsWith('.cts')) sources.push(i);
   }
-  if (files.length > 0 || !loadExtensions.includes('.js')) return { files, fromSources: false };
-  return { files: sources, fromSources: sources.length > 0 };
+  if (files.length > 0 || !loadExtensions.includes('.js')) return { indices: files, fromSources: false };
+  return { indices: sources, fromSources: sources.length > 0 };
 }
 
 /**

@@ -2,6 +2,7 @@ import type { Diagnostic, GeneratedKind, NeutralType, Origin, ReferentialAction 
 import { tableId } from '@schema-strata/core';
 import type { Arg, Chain, Cond, FnIR, KnexFacts, Param, Root, Stmt, Val } from './knex-facts.js';
 import { PMap } from './knex-pmap.js';
+import { TrackedMap, type MapAccess } from './knex-track.js';
 import {
   argText,
   columnType,
@@ -83,6 +84,9 @@ export interface SchemaState {
   /** Ids of live tables that differ from their name (renamed tables): id -> key. */
   moved: ReadonlyMap<string, string>;
 }
+
+/** The keys of each part of the state that a migration read and wrote. */
+export type StateAccess = { readonly [P in keyof SchemaState]: MapAccess };
 
 export const EMPTY_STATE: SchemaState = { tables: new PMap(), views: new Map(), enums: new Map(), moved: new Map() };
 
@@ -228,10 +232,10 @@ type Jump = 'return' | 'break' | 'continue' | null;
  * did not touch with the state before it, so a fold can keep the state after each migration.
  */
 export class Replay {
-  private tables: PMap<TableState>;
-  private views: Map<string, ViewState>;
-  private enums: Map<string, string[]>;
-  private moved: Map<string, string>;
+  private readonly tables: TrackedMap<TableState, PMap<TableState>>;
+  private readonly views: TrackedMap<ViewState, Map<string, ViewState>>;
+  private readonly enums: TrackedMap<string[], Map<string, string[]>>;
+  private readonly moved: TrackedMap<string, Map<string, string>>;
   private readonly own = new Set<object>();
   readonly diagnostics: Diagnostic[] = [];
   readonly counters: ReplayCounters = { rawStatements: 0, rawSchemaStatements: 0, unresolved: 0 };
@@ -243,13 +247,19 @@ export class Replay {
     private readonly dialect: Dialect,
     private readonly files: { get(path: string): FileContext | undefined },
   ) {
-    this.tables = new PMap(state.tables);
-    this.views = new Map(state.views);
-    this.enums = new Map(state.enums);
-    this.moved = new Map(state.moved);
+    // the state's maps are not changed: each is copied on its first write
+    this.tables = new TrackedMap(state.tables, (m) => new PMap(m));
+    this.views = new TrackedMap(state.views as Map<string, ViewState>, (m) => new Map(m));
+    this.enums = new TrackedMap(state.enums as Map<string, string[]>, (m) => new Map(m));
+    this.moved = new TrackedMap(state.moved as Map<string, string>, (m) => new Map(m));
   }
 
   state(): SchemaState {
+    return { tables: this.tables.result(), views: this.views.result(), enums: this.enums.result(), moved: this.moved.result() };
+  }
+
+  /** What the replay read and wrote of each part of the state. */
+  access(): StateAccess {
     return { tables: this.tables, views: this.views, enums: this.enums, moved: this.moved };
   }
 

@@ -108,7 +108,7 @@ function timeOptions(a: ArgValue, b: ArgValue): { useTz?: boolean; precision?: n
  * (lib/schema/columncompiler.js and lib/dialects/<dialect>/schema/*-columncompiler.js).
  * `args` are the method's arguments after the column name.
  */
-export function columnType(method: string, args: ArgValue[], d: Dialect, enums?: ReadonlyMap<string, string[]>): ColumnTypeInfo {
+export function columnType(method: string, args: ArgValue[], d: Dialect, enums?: { get(key: string): string[] | undefined }): ColumnTypeInfo {
   const native = nativeText(method, args);
   const [a0, a1] = args;
   const m = method.toLowerCase();
