@@ -1,7 +1,8 @@
 // The fold across versions against a fresh fold, on seeded random histories: migrations are
 // appended, edited, removed and inserted in the middle, and after every version the session's
 // result (which replays only what it must and takes the rest over from its previous fold) is the
-// one a new session gives for the same files.
+// one a new session gives for the same files. A version that only appends migrations extends
+// the last plan instead of planning anew; that too must give the fresh result.
 import { describe, expect, it } from 'vitest';
 import { KnexSession, knexOptions, parseKnexSource, type KnexFacts } from '@schema-strata/adapter-knex';
 import { rng } from '../helpers/rng.js';
@@ -40,18 +41,31 @@ interface Slot {
   variant: number;
 }
 
-const factsOf = new Map<string, KnexFacts>();
-function file(s: Slot): { path: string; blob: string; facts: KnexFacts } {
-  const text = `exports.up = async (knex) => { ${s.make(s.variant)} };\nexports.down = async () => {};\n`;
-  let facts = factsOf.get(text);
-  if (!facts) {
-    const r = parseKnexSource(text);
-    if (!r.ok) throw new Error(`fixture does not parse: ${text}`);
-    facts = r.facts;
-    factsOf.set(text, facts);
-  }
-  return { path: `db/migrations/${s.name}.js`, blob: `${s.name}:${s.variant}`, facts };
+type Input = { path: string; blob: string; facts: KnexFacts };
+
+function parsed(text: string): KnexFacts {
+  const r = parseKnexSource(text);
+  if (!r.ok) throw new Error(`fixture does not parse: ${text}`);
+  return r.facts;
 }
+
+// one input object per (file, variant), as core hands the same object while a path keeps its blob
+const inputs = new Map<string, Input>();
+function file(s: Slot): Input {
+  const blob = `${s.name}:${s.variant}`;
+  let f = inputs.get(blob);
+  if (!f) {
+    f = { path: `db/migrations/${s.name}.js`, blob, facts: parsed(`exports.up = async (knex) => { ${s.make(s.variant)} };\nexports.down = async () => {};\n`) };
+    inputs.set(blob, f);
+  }
+  return f;
+}
+
+const KNEXFILE: Input = {
+  path: 'knexfile.js',
+  blob: 'knexfile',
+  facts: parsed("module.exports = { client: 'pg', migrations: { directory: './db/migrations' } };\n"),
+};
 
 describe('the fold across versions, on random histories', () => {
   for (const seed of Array.from({ length: 12 }, (_, i) => i + 1)) {
@@ -73,13 +87,14 @@ describe('the fold across versions, on random histories', () => {
           const at = Math.floor(rnd() * slots.length);
           slots.splice(at, 0, { name: `${slots[at]!.name}a${round}`, make: body(rnd), variant: 0 });
         }
-        const files = slots.map(file).sort((a, b) => (a.path < b.path ? -1 : 1));
+        const files = [KNEXFILE, ...slots.map(file)].sort((a, b) => (a.path < b.path ? -1 : 1));
         const got = session.assemble({ files, missing: [] });
         const want = new KnexSession(knexOptions({})).assemble({ files, missing: [] });
         expect(got, `seed ${seed}, round ${round}`).toEqual(want);
       }
-      // the test means something only if takeovers happened
+      // the test means something only if takeovers and extended plans happened
       expect(session.carriedOver).toBeGreaterThan(0);
+      expect(session.plansExtended).toBeGreaterThan(0);
     });
   }
 });

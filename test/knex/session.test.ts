@@ -77,6 +77,33 @@ describe('the fold across versions', () => {
     }
   });
 
+  it('extends the last plan when migrations are only appended, and plans anew otherwise', () => {
+    const knexfile = { path: 'knexfile.js', blob: 'k', facts: parsed("module.exports = { client: 'pg', migrations: { directory: 'migrations' } };\n") };
+    const m = (name: string, body: string) => ({ path: `migrations/${name}`, blob: `${name}:${body}`, facts: parsed(`exports.up = async (knex) => { ${body} };\n`) });
+    const a = m('001.js', "await knex.schema.createTable('a', (t) => { t.increments('id'); });");
+    const b = m('002.js', "await knex.schema.createTable('b', (t) => { t.increments('id'); });");
+    const c = m('003.js', "await knex.schema.alterTable('a', (t) => { t.string('label'); });");
+    const early = m('0015.js', "await knex.schema.createTable('e', (t) => { t.increments('id'); });");
+    const session = new KnexSession(knexOptions({}));
+    const fresh = (files: Array<typeof a>) => new KnexSession(knexOptions({})).assemble({ files, missing: [] });
+    // [files, extended]
+    const runs: Array<[Array<typeof a>, boolean]> = [
+      [[knexfile, a], false],
+      [[knexfile, a, b], true],
+      [[knexfile, a, b, c], true],
+      [[knexfile, a, b], false], // the last migration removed
+      [[knexfile, a, b], true], // the same files again
+      [[early, knexfile, a, b].sort((x, y) => (x.path < y.path ? -1 : 1)), false], // Knex orders it before 002
+      [[knexfile, a, b], false],
+    ];
+    for (const [files, extended] of runs) {
+      const before = session.plansExtended;
+      const got = session.assemble({ files, missing: [] });
+      expect(session.plansExtended - before, files.map((f) => f.path).join(' ')).toBe(extended ? 1 : 0);
+      expect(got).toEqual(fresh(files));
+    }
+  });
+
   it('gives at every commit the schema that a fresh build of that commit gives (core schemaAt)', async () => {
     for (const [i, commit] of commitIds.entries()) {
       const v = history.versions.find((x) => x.commit === commit)!;

@@ -32,6 +32,13 @@ export interface VersionPlan {
   entries: PlanEntry[];
   files: FileLookup;
   diagnostics: Diagnostic[];
+  /**
+   * Set when the next version's plan may be this one with migrations appended (`appendedPlan`):
+   * one migration directory, no file that imports another, none missing or stale.
+   */
+  appendable?: { dir: string; loadExtensions: readonly string[]; lastName: string | null };
+  /** Set by `appendedPlan`: the plan it extended, whose entries this plan's start with. */
+  extends?: VersionPlan;
 }
 
 const factsKeys = new WeakMap<object, string>();
@@ -206,12 +213,14 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
     }
     found.push({ path: p, dir, name: baseName(p), ...(at !== undefined ? { at } : {}) });
   };
+  let fromSources = false;
   if (settings) {
     const everything = input.missing.length > 0 ? [...all, ...input.missing] : all;
     settings.directories.forEach((dir, di) => {
       const got = migrationIndices(everything, dir, settings.loadExtensions);
       for (const i of got.indices) take(everything[i]!, di, i < input.files.length ? i : -1);
       if (got.fromSources) {
+        fromSources = true;
         diagnostics.push({ severity: 'info', code: 'knex/load-extensions', file: knexfile!.path, message: `${dir}: loadExtensions names only compiled files, which are not in the repository; the .ts sources are replayed` });
       }
     });
@@ -272,21 +281,72 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
   };
   const entry = (path: string, role: PlanEntry['role'], at?: number): PlanEntry => {
     const file = at === undefined ? files.get(path) : at >= 0 ? files.at(at) : undefined;
-    if (file && file.facts.imports.length === 0) {
-      // a file that imports nothing is the same entry in every version (its context is reused)
-      let e = entryMemo.get(file);
-      if (!e || e.role !== role) {
-        e = { path, role, file, key: `${role}|${path}|${factsKey(file.facts)}|` };
-        entryMemo.set(file, e);
-      }
-      return e;
-    }
+    if (file && file.facts.imports.length === 0) return plainEntry(file, role);
     const own = file ? factsKey(file.facts) : `missing:${blobOf(path)}`;
     return { path, role, ...(file ? { file } : {}), key: `${role}|${path}|${own}|${file ? depKey(path) : ''}` };
   };
   const entries = [...init.map((p) => entry(p, 'init')), ...found.map((f) => entry(f.path, 'migration', f.at))];
-  return { dialect, entries, files, diagnostics };
+  const plan: VersionPlan = { dialect, entries, files, diagnostics };
+  if (settings && !several && !fromSources && input.missing.length === 0 && input.files.every((f) => f.facts && !f.stale && f.facts.imports.length === 0)) {
+    plan.appendable = { dir: settings.directories[0]!, loadExtensions: settings.loadExtensions, lastName: found.length > 0 ? found[found.length - 1]!.name : null };
+  }
+  return plan;
 }
+
+/** The entry of a file that imports nothing: the same object in every version (its context is reused). */
+function plainEntry(file: FileContext, role: PlanEntry['role']): PlanEntry {
+  let e = entryMemo.get(file);
+  if (!e || e.role !== role) {
+    e = { path: file.path, role, file, key: `${role}|${file.path}|${factsKey(file.facts)}|` };
+    entryMemo.set(file, e);
+  }
+  return e;
+}
+
+/**
+ * The plan of a version whose files are the last version's (the same input objects, in order)
+ * plus new migrations that Knex orders after every earlier one: the last plan with them
+ * appended, so that a history of appended migrations costs no full plan per version. Null when
+ * the version differs in any other way; `planVersion` then plans it from scratch.
+ */
+export function appendedPlan(last: VersionPlan, lastFiles: AssembleInput<KnexFacts>['files'], input: AssembleInput<KnexFacts>, options: KnexOptions): VersionPlan | null {
+  const a = last.appendable;
+  if (!a || input.missing.length > 0) return null;
+  const files = input.files;
+  const added: InputFile[] = [];
+  let i = 0;
+  for (const f of files) {
+    if (i < lastFiles.length && lastFiles[i] === f) i++;
+    else if (!f.facts || f.stale || f.facts.imports.length > 0) return null;
+    else added.push(f as InputFile);
+  }
+  if (i !== lastFiles.length) return null;
+  if (added.length === 0) return { ...last, files: new FileLookup(files, NO_PATHS), extends: last };
+  const cmp = options.order === 'natural' ? naturalCompare : codeUnitCompare;
+  const init = new Set(options.init.map((p) => posix.normalize(p).replace(/^\.\//, '')));
+  let lastName = a.lastName;
+  const entries: PlanEntry[] = [];
+  for (const f of added) {
+    if (isKnexfile(f.path) || init.has(f.path)) return null;
+    const got = migrationIndices([f.path], a.dir, a.loadExtensions);
+    if (got.indices.length !== 1 || got.fromSources) return null;
+    const name = baseName(f.path);
+    if (lastName !== null && cmp(lastName, name) >= 0) return null;
+    lastName = name;
+    entries.push(plainEntry(fileContext(f, NO_PATHS), 'migration'));
+  }
+  return {
+    dialect: last.dialect,
+    entries: [...last.entries, ...entries],
+    files: new FileLookup(files, NO_PATHS),
+    diagnostics: last.diagnostics,
+    appendable: { ...a, lastName },
+    extends: last,
+  };
+}
+
+/** For plans whose files import nothing: no import is ever resolved against it. */
+const NO_PATHS = { has: (): boolean => false };
 
 interface Step {
   key: string;
@@ -418,14 +478,33 @@ export class KnexSession implements AdapterSession<KnexFacts> {
 
   constructor(private readonly options: KnexOptions) {}
 
+  /** The last version's plan and files, which the next version's plan may extend. */
+  private last: { plan: VersionPlan; files: AssembleInput<KnexFacts>['files'] } | null = null;
+  /** Versions planned by extending the last plan (for tests and benchmarks). */
+  plansExtended = 0;
+  /** The plan `steps` were folded for. */
+  private folded: VersionPlan | null = null;
+
+  private plan(input: AssembleInput<KnexFacts>): VersionPlan {
+    const extended = this.last ? appendedPlan(this.last.plan, this.last.files, input, this.options) : null;
+    if (extended) this.plansExtended++;
+    const plan = extended ?? planVersion(input, this.options);
+    this.last = { plan, files: input.files };
+    return plan;
+  }
+
   assemble(input: AssembleInput<KnexFacts>): AssembleResult {
-    const plan = planVersion(input, this.options);
+    const plan = this.plan(input);
     if (plan.dialect !== this.dialect) {
       this.steps = [];
       this.dialect = plan.dialect;
     }
     const steps = this.steps;
     let i = 0;
+    // a plan that extends the one the steps were folded for shares all of its entries
+    if (plan.extends && plan.extends === this.folded && steps.length === plan.extends.entries.length) i = steps.length;
+    // (not kept: a chain of plans would hold every version's entries)
+    delete plan.extends;
     while (i < steps.length && i < plan.entries.length && steps[i]!.key === plan.entries[i]!.key) i++;
     // the old fold's steps from the first difference on, to match against this version's entries
     const rest = steps.slice(i);
@@ -496,6 +575,7 @@ export class KnexSession implements AdapterSession<KnexFacts> {
         upTo: this.upTo(j, e.role, !e.file, replay.diagnostics, replay.counters),
       });
     }
+    this.folded = plan;
     return this.result(state, plan);
   }
 

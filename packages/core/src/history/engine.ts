@@ -17,7 +17,7 @@ import { canonicalJson } from '../model/canonical.js';
 import type { Diagnostic, Table, ViewRef } from '../model/types.js';
 import { UsageError, EXIT } from '../util/errors.js';
 import { RecordPack } from './disk-cache.js';
-import { SetKeys, sameRefs, sortedUnique } from './set-key.js';
+import { SetKeys, sameRefs, sortedUnique, unpaired } from './set-key.js';
 import { pathLineage } from './path-lineage.js';
 import { packOrigins, SnapshotStore, unpackOrigins, type BuiltSnapshot, type PackedOrigins, type TableOrigins } from './snapshot-store.js';
 import type { Progress } from '../util/progress.js';
@@ -427,6 +427,7 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
     return k;
   };
   let prefetched = 0;
+  let prefetchedFiles: readonly FileRef[] = [];
   const prefetch = (upTo: number): void => {
     for (; prefetched < Math.min(upTo, candidates.length); prefetched++) {
       const cand = candidates[prefetched]!;
@@ -437,7 +438,9 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
         if (hit && unitTablesKnown(hit)) continue;
         for (const f of files) void reader.read(f.blob).catch(() => undefined);
       } else {
-        for (const f of files) if (!factsCache.has(f.blob)) void reader.read(f.blob).catch(() => undefined);
+        // only files that the candidate before did not have can be new to the caches
+        for (const f of unpaired(prefetchedFiles, files)) if (!factsCache.has(f.blob)) void reader.read(f.blob).catch(() => undefined);
+        prefetchedFiles = files;
       }
     }
   };

@@ -85,6 +85,30 @@ export class SetKeys {
   }
 }
 
+/**
+ * The members of `next` that a walk over both lists side by side (as in `SetKeys.key`) does not
+ * pair with the same object in `prev`: for lists sorted by path, the members new in `next`.
+ */
+export function unpaired(prev: readonly FileRef[], next: readonly FileRef[]): FileRef[] {
+  const out: FileRef[] = [];
+  let i = 0;
+  let j = 0;
+  while (j < next.length) {
+    const x = prev[i];
+    const y = next[j]!;
+    if (x === y) {
+      i++;
+      j++;
+    } else if (x !== undefined && x.path < y.path) i++;
+    else {
+      out.push(y);
+      j++;
+      if (x !== undefined && x.path === y.path) i++;
+    }
+  }
+  return out;
+}
+
 /** SHA-256 of a text as eight 32-bit words. */
 function words(text: string): Uint32Array {
   const b = createHash('sha256').update(text).digest();

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { SetKeys, sortedUnique } from '../../src/history/set-key.js';
+import { SetKeys, sortedUnique, unpaired } from '../../src/history/set-key.js';
 
 function rng(seed: number): () => number {
   let a = seed >>> 0;
@@ -46,5 +46,18 @@ describe('sortedUnique', () => {
     expect(sortedUnique(sorted)).toBe(sorted);
     expect(sortedUnique(['k', 'a', 'k', 'b', 'a'])).toEqual(['a', 'b', 'k']);
     expect(sortedUnique([])).toEqual([]);
+  });
+});
+
+describe('unpaired', () => {
+  it('gives the members of the next sorted list that the last one did not have', () => {
+    const k = new SetKeys();
+    const [a, b, c] = [k.ref('a.js', '1'), k.ref('b.js', '1'), k.ref('c.js', '1')];
+    const b2 = k.ref('b.js', '2');
+    const d = k.ref('d.js', '1');
+    expect(unpaired([a, b, c], [a, b2, c, d])).toEqual([b2, d]);
+    expect(unpaired([a, c], [a, b2, c])).toEqual([b2]);
+    expect(unpaired([], [a, c])).toEqual([a, c]);
+    expect(unpaired([a, b, c], [c])).toEqual([]);
   });
 });
