@@ -30,7 +30,8 @@ const US = '\x1f';
 
 /**
  * The log pass: one `git log` process over the first-parent line of `ref`, oldest first, with
- * raw diffs (full blob ids) limited to `pathspecs`. Rename detection (`renames`) is asked only
+ * raw diffs (full blob ids) limited to `pathspecs` (and to the paths `keep` accepts, when given:
+ * a commit left with no change is not listed). Rename detection (`renames`) is asked only
  * when literal `--path` entries must be followed back through moves: it is the costliest part
  * of the pass, and the tree state needs none (a rename is a deletion plus an addition). Merges are diffed
  * against their first parent, so what a merge brings in is seen at the merge.
@@ -40,7 +41,7 @@ export function logPass(
   ref: string,
   pathspecs: string[],
   onCommit?: (n: number) => void,
-  opts: { renames?: boolean } = {},
+  opts: { renames?: boolean; keep?: (path: string) => boolean } = {},
 ): Promise<LoggedCommit[]> {
   const args = [
     '-C', repo,
@@ -54,7 +55,14 @@ export function logPass(
   return new Promise((resolve, reject) => {
     const child = spawn('git', args, { env: gitEnv(), stdio: ['ignore', 'pipe', 'pipe'] });
     const commits: LoggedCommit[] = [];
+    const keep = opts.keep;
     const parser = new RawLogParser((c) => {
+      if (keep) {
+        // git selected more than was asked (see logSelection): only the wanted paths, and only
+        // commits that still change one
+        c.changes = c.changes.filter((ch) => keep(ch.path) || (ch.from !== ch.path && keep(ch.from)));
+        if (c.changes.length === 0) return;
+      }
       commits.push(c);
       onCommit?.(commits.length);
     });

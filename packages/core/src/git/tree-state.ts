@@ -79,6 +79,30 @@ export function toPathspecs(globs: readonly string[]): string[] {
   return globs.map((g) => `:(glob)${g}`);
 }
 
+const NODE_MODULES = /(^|\/)node_modules\//;
+
+/**
+ * What the log pass asks git for, and the filter that makes it exact. Git matches every entry
+ * of every tree a commit changes against every pathspec, and its `:(glob)` matching (and an
+ * exclusion) is the dear part of the pass when a directory holds many files (1,500 migrations:
+ * 1.25 s with glob pathspecs, 0.75 s with plain ones, measured on the Knex benchmark). So a glob
+ * that is a double star, a slash and a NAME (no slash, no braces in NAME) goes to git as the plain
+ * pathspec `*NAME` (git's `*` also crosses slashes, so it selects more, never less), and what git lists
+ * is filtered here with the globs themselves, node_modules left out. With `exact`, the glob
+ * pathspecs and the exclusion go to git and nothing is filtered (for rename detection, whose
+ * candidates the pathspecs limit).
+ */
+export function logSelection(globs: readonly string[], exact: boolean): { pathspecs: string[]; keep: ((path: string) => boolean) | null } {
+  if (exact) return { pathspecs: [...toPathspecs(globs), ':(exclude,glob)**/node_modules/**'], keep: null };
+  const pathspecs = globs.map((g) => {
+    const m = /^\*\*\/([^/{}()!+@]+)$/.exec(g);
+    if (!m || m[1]!.includes('**')) return `:(glob)${g}`;
+    return m[1]!.startsWith('*') ? m[1]! : `*${m[1]}`;
+  });
+  const match = matcher(globs);
+  return { pathspecs, keep: (path) => !NODE_MODULES.test(path) && match(path) };
+}
+
 export function matcher(globs: readonly string[]): (path: string) => boolean {
   if (globs.length === 0) return () => false;
   return picomatch(globs as string[], { dot: true });

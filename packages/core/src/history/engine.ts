@@ -12,7 +12,7 @@ import { diffSnapshots } from '../changes/diff-snapshots.js';
 import { BlobReader } from '../git/blob-reader.js';
 import { logPass, type LoggedCommit } from '../git/log-pass.js';
 import { firstParentLine, openRepository, resolveRevisions } from '../git/repository.js';
-import { isGlob, matcher, selectUserPaths, toPathspecs, TreeState } from '../git/tree-state.js';
+import { isGlob, logSelection, matcher, selectUserPaths, TreeState } from '../git/tree-state.js';
 import { canonicalJson } from '../model/canonical.js';
 import type { Diagnostic, Table, ViewRef } from '../model/types.js';
 import { UsageError, EXIT } from '../util/errors.js';
@@ -182,11 +182,14 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
   const watch = [...adapter.watch];
   for (const p of literal) watch.push(p, `${p}/**`);
   watch.push(...globs);
-  const pathspecs = [...toPathspecs(watch), ':(exclude,glob)**/node_modules/**'];
+  const selection = logSelection(watch, literal.length > 0);
 
   // ---- the log pass
   progress?.phase('reading history');
-  const commits = await logPass(repo.path, repo.head, pathspecs, (n) => progress?.tick(n), { renames: literal.length > 0 });
+  const commits = await logPass(repo.path, repo.head, selection.pathspecs, (n) => progress?.tick(n), {
+    renames: literal.length > 0,
+    ...(selection.keep ? { keep: selection.keep } : {}),
+  });
 
   // ---- the window
   const window = await resolveWindow(repo.path, repo.head, commits, req.since, req.until);
