@@ -1,7 +1,8 @@
 // Prisma extract benchmark (issue 2): a synthetic history of about 2,000 commits whose schema
 // grows to about 150 models. Prints, side by side in one run, the extract's time, the floor,
 // the naive way and a re-run after one more commit with the disk cache, and peak memory.
-// Each measurement runs in its own process (peak memory is per process).
+// Each measurement runs in its own process (peak memory is per process); the extract and the
+// floor twice each, alternating, the faster of each counting.
 import { existsSync, mkdirSync, rmSync } from 'node:fs';
 import { spawnSync } from 'node:child_process';
 import { join, dirname } from 'node:path';
@@ -21,8 +22,8 @@ const t0 = Date.now();
 const gen = await makePrismaHistory(repo, { commits: COMMITS, models: MODELS });
 console.log(`synthetic history: ${gen.commits} commits, ${gen.models} models at the end (generated in ${((Date.now() - t0) / 1000).toFixed(1)} s)`);
 
-function measure(mode, extra = []) {
-  const r = spawnSync(process.execPath, [join(here, 'lib', 'prisma-modes.js'), mode, repo, cache, ...extra], { encoding: 'utf8', maxBuffer: 1 << 26 });
+function measure(mode, extra = [], cacheDir = cache) {
+  const r = spawnSync(process.execPath, [join(here, 'lib', 'prisma-modes.js'), mode, repo, cacheDir, ...extra], { encoding: 'utf8', maxBuffer: 1 << 26 });
   if (r.status !== 0) {
     console.error(r.stderr);
     throw new Error(`${mode} failed`);
@@ -30,8 +31,20 @@ function measure(mode, extra = []) {
   return JSON.parse(r.stdout.trim().split('\n').pop());
 }
 
-const cold = measure('extract');
-const floor = measure('floor');
+// the cold extract and the floor alternate, twice each, and the faster of each pair counts (the
+// machine may be shared with other work); each cold extract starts from an empty cache, and the
+// re-run below uses the cache of the last one
+const colds = [];
+const floors = [];
+for (let k = 0; k < 2; k++) {
+  rmSync(cache, { recursive: true, force: true });
+  colds.push(measure('extract'));
+  floors.push(measure('floor'));
+}
+const best = (xs) => xs.reduce((a, b) => (b.ms < a.ms ? b : a));
+const cold = best(colds);
+const floor = best(floors);
+console.log(`cold extract runs: ${colds.map((c) => (c.ms / 1000).toFixed(2)).join(' s, ')} s; floor runs: ${floors.map((c) => (c.ms / 1000).toFixed(2)).join(' s, ')} s`);
 const naive = measure('naive');
 await gen.appendOne();
 const rerun = measure('extract');
