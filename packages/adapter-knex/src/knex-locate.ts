@@ -254,13 +254,16 @@ async function looksLikeKnexMigration(tree: TreeView, path: string): Promise<boo
 }
 
 /** The files the given ones import from the project, transitively (at most `limit` files). */
-async function importClosure(tree: TreeView, start: readonly string[], skip: ReadonlySet<string>, limit = 500): Promise<string[]> {
+async function importClosure(tree: TreeView, start: readonly string[], skip: ReadonlySet<string>, limit = 500): Promise<{ files: string[]; anyImports: boolean }> {
   const seen = new Set(start);
   const queue = [...start];
   const out: string[] = [];
+  let anyImports = false;
   for (let head = 0; head < queue.length && out.length < limit; head++) {
     const p = queue[head]!;
-    for (const spec of await importsOf(tree, p)) {
+    const specs = await importsOf(tree, p);
+    if (specs.length > 0) anyImports = true;
+    for (const spec of specs) {
       const target = resolveImport(p, spec, (x) => tree.has(x));
       if (!target || seen.has(target) || skip.has(target)) continue;
       seen.add(target);
@@ -268,7 +271,7 @@ async function importClosure(tree: TreeView, start: readonly string[], skip: Rea
       queue.push(target);
     }
   }
-  return out;
+  return { files: out, anyImports };
 }
 
 function normalisePath(p: string): string {
@@ -284,6 +287,8 @@ interface Found {
   knexfile?: string;
   migrations: string[];
   diagnostics: Diagnostic[];
+  /** The knexfile's migration settings, and whether a directory fell back to `.ts` sources. */
+  settings?: { directories: string[]; loadExtensions: string[]; fromSources: boolean };
 }
 
 /** The migrations of one knexfile at this commit. */
@@ -291,8 +296,76 @@ async function fromKnexfile(tree: TreeView, knexfile: string, environment: strin
   const config = await knexfileConfig(tree, knexfile);
   const s = knexfileSettings(config ?? undefined, knexfile, environment);
   const migrations: string[] = [];
-  for (const dir of s.directories) migrations.push(...migrationsIn(tree.under(dir), dir, s.loadExtensions).files);
-  return { knexfile, migrations, diagnostics: [] };
+  let fromSources = false;
+  for (const dir of s.directories) {
+    const got = migrationsIn(tree.under(dir), dir, s.loadExtensions);
+    migrations.push(...got.files);
+    if (got.fromSources) fromSources = true;
+  }
+  return { knexfile, migrations, diagnostics: [], settings: { directories: s.directories, loadExtensions: s.loadExtensions, fromSources } };
+}
+
+/**
+ * What one walk's last locate found, when it is simple enough to carry to the next commit: a
+ * root knexfile, migrations that import nothing (so no helper files), no diagnostics.
+ */
+interface Carried {
+  knexfile: string;
+  /** The init files present, and every one the options name. */
+  init: string[];
+  initNamed: string[];
+  directories: string[];
+  loadExtensions: string[];
+  /** Sorted by path. */
+  migrations: string[];
+}
+const carriedByWalk = new WeakMap<object, Carried>();
+
+function sortedUnique(xs: readonly string[]): string[] {
+  return [...new Set(xs)].sort();
+}
+
+function sortedInsert(xs: string[], p: string): boolean {
+  let lo = 0;
+  let hi = xs.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (xs[mid]! < p) lo = mid + 1;
+    else hi = mid;
+  }
+  if (xs[lo] === p) return false;
+  xs.splice(lo, 0, p);
+  return true;
+}
+
+/**
+ * The located files of this commit from the walk's last ones, when this commit only added or
+ * changed migrations that import nothing (or files that cannot matter: not a knexfile, not an
+ * init file, not in a migration directory, with nothing imported anywhere). Null otherwise:
+ * then the commit is located afresh.
+ */
+async function carryForward(tree: TreeView, last: Carried, changed: readonly string[]): Promise<Carried | null> {
+  let migrations = last.migrations;
+  for (const p of changed) {
+    if (isKnexfile(p) || last.initNamed.includes(p)) return null;
+    const parent = posix.dirname(p);
+    const dir = parent === '.' ? '' : parent;
+    if (!last.directories.includes(dir)) continue;
+    if (!tree.has(p)) return null;
+    const got = migrationsIn([p], dir, last.loadExtensions);
+    if (got.fromSources) return null;
+    if (got.files.length === 0) continue;
+    if ((await importsOf(tree, p)).length > 0) return null;
+    if (migrations === last.migrations) migrations = [...migrations];
+    sortedInsert(migrations, p);
+  }
+  return migrations === last.migrations ? last : { ...last, migrations };
+}
+
+function carriedFiles(c: Carried): string[] {
+  const files = [...c.migrations];
+  for (const p of [c.knexfile, ...c.init]) sortedInsert(files, p);
+  return files;
 }
 
 /**
@@ -302,6 +375,18 @@ async function fromKnexfile(tree: TreeView, knexfile: string, environment: strin
  * migrations import from the project are included, so that their edits make versions.
  */
 export async function locateKnex(tree: TreeView, req: LocateRequest): Promise<Located> {
+  const walk = req.paths ? undefined : tree.walk;
+  if (walk) {
+    const last = carriedByWalk.get(walk.id);
+    if (last) {
+      const next = await carryForward(tree, last, walk.changed);
+      if (next) {
+        carriedByWalk.set(walk.id, next);
+        return { files: carriedFiles(next), searched: SEARCHED };
+      }
+      carriedByWalk.delete(walk.id);
+    }
+  }
   const opts = knexOptions(req.options);
   const init = initFiles(req.options).filter((p) => tree.has(p));
   const diagnostics: Diagnostic[] = [];
@@ -368,7 +453,16 @@ export async function locateKnex(tree: TreeView, req: LocateRequest): Promise<Lo
   }
   const core = [...init, ...migrations];
   const skip = new Set<string>([...core, ...(found?.knexfile ? [found.knexfile] : [])]);
-  const helpers = await importClosure(tree, core, skip);
+  const closure = await importClosure(tree, core, skip);
+  const helpers = closure.files;
   const files = [...(found?.knexfile ? [found.knexfile] : []), ...core, ...helpers];
+  // the next commit of the walk may start from this one (see carryForward)
+  const kf = found?.knexfile;
+  if (walk && kf && !kf.includes('/') && found!.settings && !found!.settings.fromSources && !closure.anyImports && diagnostics.length === 0) {
+    carriedByWalk.set(walk.id, {
+      knexfile: kf, init, initNamed: initFiles(req.options), directories: found!.settings.directories,
+      loadExtensions: found!.settings.loadExtensions, migrations: sortedUnique(migrations),
+    });
+  }
   return { files, searched: SEARCHED, ...(diagnostics.length ? { diagnostics } : {}) };
 }

@@ -163,6 +163,14 @@ export interface TreeView {
   read(path: string): Promise<string | undefined>;
   /** Paths under a directory (no trailing slash), recursively. */
   under(dir: string): string[];
+  /**
+   * Set during the history walk, where `locate` is called for every logged commit in order:
+   * `id` is one object for the whole walk (a key for state an adapter carries from commit to
+   * commit, in a WeakMap), and `changed` lists the watched paths this commit added, changed or
+   * deleted since the commit of the walk's previous call (a rename as both paths). Absent when
+   * a view stands on its own (one commit built alone, adapter detection): assume nothing then.
+   */
+  readonly walk?: { readonly id: object; readonly changed: readonly string[] };
 }
 
 export interface LocateRequest {

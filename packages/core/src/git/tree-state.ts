@@ -36,11 +36,12 @@ export class TreeState {
     return this.sorted;
   }
 
-  view(commit: string, reader: BlobReader): TreeView {
+  view(commit: string, reader: BlobReader, walk?: TreeView['walk']): TreeView {
     const files = this.files;
     const self = this;
     return {
       commit,
+      ...(walk ? { walk } : {}),
       paths: () => self.paths(),
       has: (p) => files.has(p),
       blob: (p) => files.get(p),

@@ -208,10 +208,16 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
     let unsupported: string | undefined;
     let searched: string | undefined;
     progress?.phase('locating the schema', commits.length);
+    const walkId = {};
     for (let i = 0; i < commits.length; i++) {
       const c = commits[i]!;
       tree.apply(c.changes);
-      const view = tree.view(c.commit, reader);
+      const changed: string[] = [];
+      for (const ch of c.changes) {
+        changed.push(ch.path);
+        if (ch.from !== ch.path) changed.push(ch.from);
+      }
+      const view = tree.view(c.commit, reader, { id: walkId, changed });
       let located: Located;
       if (userPaths.length > 0) {
         const names = lineage ? lineage[i]! : [];
