@@ -202,6 +202,9 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
     const userMatch = matcher(globs);
     const candidates: Candidate[] = [];
     let prevFiles: FileRef[] = [];
+    /** The last commit's located paths (sorted) and their references (undefined: not in its tree). */
+    let prevPaths: readonly string[] = [];
+    let prevPathRefs: ReadonlyArray<FileRef | undefined> = [];
     const keys = new SetKeys();
     const ambiguous = new Map<string, string[]>();
     let ambiguousHint = '';
@@ -231,11 +234,27 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
         for (const cand of located.ambiguous.candidates) ambiguous.set(cand.join(', '), cand);
         ambiguousHint = located.ambiguous.hint;
       }
+      // the file references of the located paths; a path the last commit also located, and that
+      // this commit did not change, keeps its reference (no lookups)
       const files: FileRef[] = [];
-      for (const p of sortedUnique(located.files)) {
-        const blob = tree.get(p);
-        if (blob) files.push(keys.ref(p, blob));
+      const paths = sortedUnique(located.files);
+      const refs: Array<FileRef | undefined> = new Array(paths.length);
+      const changedSet = changed.length > 8 ? new Set(changed) : null;
+      let j = 0;
+      for (let k = 0; k < paths.length; k++) {
+        const p = paths[k]!;
+        if (prevPaths[j] !== p) while (j < prevPaths.length && prevPaths[j]! < p) j++;
+        let r: FileRef | undefined;
+        if (prevPaths[j] === p && !(changedSet ? changedSet.has(p) : changed.includes(p))) r = prevPathRefs[j];
+        else {
+          const blob = tree.get(p);
+          r = blob ? keys.ref(p, blob) : undefined;
+        }
+        refs[k] = r;
+        if (r) files.push(r);
       }
+      prevPaths = paths;
+      prevPathRefs = refs;
       if (!sameRefs(files, prevFiles)) {
         const consulted: FileRef[] = [];
         for (const p of sortedUnique(located.consulted ?? [])) {
