@@ -253,7 +253,8 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
         refs[k] = r;
         if (r) files.push(r);
       }
-      prevPaths = paths;
+      // (a copy when it is the adapter's own array, which the adapter might change later)
+      prevPaths = paths === located.files ? paths.slice() : paths;
       prevPathRefs = refs;
       if (!sameRefs(files, prevFiles)) {
         const consulted: FileRef[] = [];
