@@ -19,7 +19,7 @@ import { UsageError, EXIT } from '../util/errors.js';
 import { RecordPack } from './disk-cache.js';
 import { SetKeys, sameRefs, sortedUnique, unpaired } from './set-key.js';
 import { pathLineage } from './path-lineage.js';
-import { packOrigins, SnapshotStore, unpackOrigins, type BuiltSnapshot, type PackedOrigins, type TableOrigins } from './snapshot-store.js';
+import { hasPackedOrigins, packOrigins, SnapshotStore, unpackOrigins, type BuiltSnapshot, type PackedOrigins, type TableOrigins } from './snapshot-store.js';
 import type { Progress } from '../util/progress.js';
 import { VERSION } from '../version.js';
 
@@ -100,7 +100,7 @@ export interface History {
 export const DEFAULT_MAX_FILE_BYTES = 5 * 1024 * 1024;
 
 /** Layout of the disk cache's records; bump it when they change. */
-const PACK_FORMAT = 2;
+const PACK_FORMAT = 3;
 
 interface CachedUnit {
   k: 's';
@@ -429,6 +429,24 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
 
   const unitTablesKnown = (u: CachedUnit): boolean =>
     !u.tables || u.tables.every((h) => store.getTable(h) !== undefined || cachedTables.has(h));
+  /** The unit's packed origins from the disk cache, when one of its tables still needs its first origins. */
+  const loadOrigins = (u: CachedUnit): void => {
+    if (u.rawOrigins || u.origins || !pack || !u.tables?.some((h) => !tableOrigins.has(h))) return;
+    const rec = pack.deferredRecord(u.key);
+    if (rec?.k === 'o') u.origins = rec.origins;
+  };
+  /**
+   * Whether a cached unit can stand for this version: its tables are known, and the cache kept
+   * the origins of every table that first appears here in this run (a run that starts later in
+   * the history, with --since, can need some that an earlier run did not keep: then the unit is
+   * assembled again).
+   */
+  const usable = (u: CachedUnit): boolean => {
+    if (!unitTablesKnown(u)) return false;
+    loadOrigins(u);
+    const packed = u.origins;
+    return !packed || u.tables!.every((h, i) => tableOrigins.has(h) || hasPackedOrigins(packed, i));
+  };
 
   const stats = { assembled: 0, assembleCacheHits: 0, filesParsed: 0, fileCacheHits: 0 };
   const lastGood = new Map<string, { blob: string; facts: unknown }>();
@@ -498,7 +516,7 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
       if (!adapter.parseFile) {
         key = unitKeyOf(cand);
         const hit = unitCache.get(key);
-        if (!hit || !unitTablesKnown(hit)) {
+        if (!hit || !usable(hit)) {
           for (const f of cand.files) {
             const got = await reader.read(f.blob);
             if (got.kind === 'text') {
@@ -571,7 +589,7 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
 
       // ---- assemble (cached by the exact input set)
       let unit = unitCache.get(key);
-      if (unit && !unitTablesKnown(unit)) unit = undefined;
+      if (unit && !usable(unit)) unit = undefined;
       if (unit) {
         stats.assembleCacheHits++;
       } else {
@@ -603,8 +621,9 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
         if (pack) {
           const { rawOrigins, origins: _packed, ...stored } = unit;
           pack.add(stored);
-          // packed only for the disk cache; this run reads them unpacked
-          if (rawOrigins) pack.add({ k: 'o', key, origins: packOrigins(rawOrigins) });
+          // packed only for the disk cache (this run reads them unpacked), and only those of the
+          // tables that first appear here: a run over the same history needs no others
+          if (rawOrigins) pack.add({ k: 'o', key, origins: packOrigins(rawOrigins, unit.tables!.map((h) => !tableOrigins.has(h))) });
         }
       }
       diagnostics.push(...unit.d);
@@ -626,10 +645,7 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
         snapshot = store.assembleSnapshot(tables, unit.views ?? []);
         const existing = snapshots.get(snapshot.hash);
         if (existing) snapshot = existing;
-        if (!unit.rawOrigins && !unit.origins && pack && unit.tables!.some((h) => !tableOrigins.has(h))) {
-          const rec = pack.deferredRecord(key);
-          if (rec?.k === 'o') unit.origins = rec.origins;
-        }
+        loadOrigins(unit);
         unit.tables!.forEach((h, i) => {
           if (!tableOrigins.has(h)) {
             tableOrigins.set(h, unit!.rawOrigins ? unit!.rawOrigins[i] ?? {} : unit!.origins ? unpackOrigins(unit!.origins, i) : {});

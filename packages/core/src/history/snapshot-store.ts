@@ -80,10 +80,12 @@ export function withOrigins(t: Table, origins: TableOrigins | undefined): Table 
  */
 export interface PackedOrigins {
   f: string[];
-  t: Array<Array<number | [number, number]>>;
+  /** 0 for a table whose origins were not kept (see `packOrigins`). */
+  t: Array<Array<number | [number, number]> | 0>;
 }
 
-export function packOrigins(all: TableOrigins[]): PackedOrigins {
+/** Pack the origins of a snapshot's tables; with `keep`, only those of the tables it marks (the others 0). */
+export function packOrigins(all: TableOrigins[], keep?: readonly boolean[]): PackedOrigins {
   const files: string[] = [];
   const index = new Map<string, number>();
   const fi = (f: string): number => {
@@ -95,7 +97,8 @@ export function packOrigins(all: TableOrigins[]): PackedOrigins {
     }
     return i;
   };
-  const t = all.map((o) => {
+  const t = all.map((o, i) => {
+    if (keep && !keep[i]) return 0 as const;
     const own = o.o ? fi(o.o.file) : -1;
     const row: Array<number | [number, number]> = [own, o.o?.line ?? 0];
     for (const c of o.c ?? []) {
@@ -106,6 +109,11 @@ export function packOrigins(all: TableOrigins[]): PackedOrigins {
     return row;
   });
   return { f: files, t };
+}
+
+/** Whether the packed origins hold those of table `i`. */
+export function hasPackedOrigins(p: PackedOrigins, i: number): boolean {
+  return p.t[i] !== 0;
 }
 
 export function unpackOrigins(p: PackedOrigins, i: number): TableOrigins {
