@@ -15,7 +15,7 @@ const mig = (body: string) => `exports.up = async (knex) => { ${body} };\nexport
 const create = (t: string, extra = '') => mig(`await knex.schema.createTable('${t}', (t) => { t.increments('id'); t.string('label', 40);${extra} });`);
 const knexfile = (dirs: string[]) => `module.exports = { client: 'pg', migrations: { directory: ${JSON.stringify(dirs)} } };\n`;
 
-const commits: ScriptedCommit[] = [
+const steps: Array<{ files: ScriptedCommit['files'] }> = [
   { files: { 'package.json': '{ "dependencies": { "knex": "^3.1.0" } }\n', 'knexfile.js': knexfile(['./db/migrations']), 'db/migrations/001_tools.js': create('tools') } },
   { files: { 'db/migrations/002_members.js': create('members'), 'src/app.ts': 'export const app = 1;\n' } },
   { files: { 'db/migrations/001_tools.js': create('tools', " t.text('note');") } },
@@ -30,7 +30,8 @@ const commits: ScriptedCommit[] = [
   { files: { 'db/migrations/003_loans.js': "const { cols } = require('../helpers/cols');\n" + mig("await knex.schema.createTable('loans', (t) => { t.increments('id'); cols(t); });") } },
   { files: { 'db/helpers/cols.js': "exports.cols = (t) => { t.integer('tool_id'); };\n" } },
   { files: { 'db/more/008_slots.js': create('slots'), 'src/app.ts': 'export const app = 2;\n' } },
-].map((c, i) => ({ date: day(i * 3), message: `step ${i}`, ...c }));
+];
+const commits: ScriptedCommit[] = steps.map((c, i) => ({ date: day(i * 3), message: `step ${i}`, ...c }));
 
 /** The Knex adapter with every locate call given a view without the walk: each commit located afresh. */
 const afresh: SchemaAdapter = {
