@@ -1,4 +1,5 @@
-// The benchmarks' seedable generator, so that a synthetic history is the same on every run.
+// The seedable generator of the benchmarks and of the random tests, so that a synthetic history
+// is the same on every run.
 
 /** A small, seedable PRNG (mulberry32). */
 export function rng(seed) {

@@ -5,7 +5,7 @@
 // the last plan instead of planning anew; that too must give the fresh result.
 import { describe, expect, it } from 'vitest';
 import { KnexSession, knexOptions, parseKnexSource, type KnexFacts } from '@schema-strata/adapter-knex';
-import { rng } from '../helpers/rng.js';
+import { rng } from '../../bench/lib/rng.js';
 
 const TABLES = ['tools', 'members', 'loans', 'repairs'];
 
