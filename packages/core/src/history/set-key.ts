@@ -54,34 +54,42 @@ export class SetKeys {
    * of both, so the result is right whatever the order; sorted lists pair up the most.
    */
   private membersDigest(files: readonly FileRef[]): Uint32Array {
-    const xor = (acc: Uint32Array, f: FileRef): void => {
+    const acc = this.last ? this.last.acc.slice() : new Uint32Array(8);
+    const xor = (f: FileRef): void => {
       const d = this.digest(f);
       for (let i = 0; i < 8; i++) acc[i]! ^= d[i]!;
     };
-    const a = this.last?.files ?? [];
-    const acc = this.last ? this.last.acc.slice() : new Uint32Array(8);
-    let i = 0;
-    let j = 0;
-    while (i < a.length || j < files.length) {
-      const x = a[i];
-      const y = files[j];
-      if (x === y) {
-        i++;
-        j++;
-      } else if (y === undefined || (x !== undefined && x.path <= y.path)) {
-        xor(acc, x!);
-        i++;
-        if (y !== undefined && x!.path === y.path) {
-          xor(acc, y);
-          j++;
-        }
-      } else {
-        xor(acc, y);
-        j++;
-      }
-    }
+    walkUnpaired(this.last?.files ?? [], files, xor, xor);
     this.last = { files, acc: acc.slice() };
     return acc;
+  }
+}
+
+/**
+ * A walk over two lists side by side, in the order of their paths: a member that is the same
+ * object at the same point of both is paired; `prevOnly` and `nextOnly` get every other member,
+ * once. For lists sorted by path, the unpaired ones are those that differ between them.
+ */
+function walkUnpaired(prev: readonly FileRef[], next: readonly FileRef[], prevOnly: (f: FileRef) => void, nextOnly: (f: FileRef) => void): void {
+  let i = 0;
+  let j = 0;
+  while (i < prev.length || j < next.length) {
+    const x = prev[i];
+    const y = next[j];
+    if (x === y) {
+      i++;
+      j++;
+    } else if (y === undefined || (x !== undefined && x.path <= y.path)) {
+      prevOnly(x!);
+      i++;
+      if (y !== undefined && x!.path === y.path) {
+        nextOnly(y);
+        j++;
+      }
+    } else {
+      nextOnly(y);
+      j++;
+    }
   }
 }
 
@@ -91,21 +99,7 @@ export class SetKeys {
  */
 export function unpaired(prev: readonly FileRef[], next: readonly FileRef[]): FileRef[] {
   const out: FileRef[] = [];
-  let i = 0;
-  let j = 0;
-  while (j < next.length) {
-    const x = prev[i];
-    const y = next[j]!;
-    if (x === y) {
-      i++;
-      j++;
-    } else if (x !== undefined && x.path < y.path) i++;
-    else {
-      out.push(y);
-      j++;
-      if (x !== undefined && x.path === y.path) i++;
-    }
-  }
+  walkUnpaired(prev, next, () => undefined, (f) => out.push(f));
   return out;
 }
 
