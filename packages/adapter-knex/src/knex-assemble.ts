@@ -172,6 +172,11 @@ export function naturalCompare(a: string, b: string): number {
 
 const codeUnitCompare = (a: string, b: string): number => (a < b ? -1 : a > b ? 1 : 0);
 
+/** The init files the options name, as paths of the version's files. */
+function initPaths(options: KnexOptions): string[] {
+  return options.init.map((p) => posix.normalize(p).replace(/^\.\//, ''));
+}
+
 /**
  * Plan the replay of one version: find the knexfile among the files (its migration settings and
  * client), the init files, the migrations in Knex's order (lib/migrations/migrate/sources/
@@ -187,7 +192,7 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
   let blobs: Map<string, string> | null = null;
   const blobOf = (p: string): string => (blobs ??= new Map(input.files.map((f) => [f.path, f.blob]))).get(p) ?? '';
 
-  const init = options.init.map((p) => posix.normalize(p).replace(/^\.\//, '')).filter((p) => paths.has(p));
+  const init = initPaths(options).filter((p) => paths.has(p));
   const initSet = new Set(init);
   const knexfile = input.files.find((f) => isKnexfile(f.path) && !initSet.has(f.path));
   const settings = knexfile ? knexfileSettings(knexfile.facts?.config, knexfile.path, options.environment) : null;
@@ -323,7 +328,7 @@ export function appendedPlan(last: VersionPlan, lastFiles: AssembleInput<KnexFac
   if (i !== lastFiles.length) return null;
   if (added.length === 0) return { ...last, files: new FileLookup(files, NO_PATHS), extends: last };
   const cmp = options.order === 'natural' ? naturalCompare : codeUnitCompare;
-  const init = new Set(options.init.map((p) => posix.normalize(p).replace(/^\.\//, '')));
+  const init = new Set(initPaths(options));
   let lastName = a.lastName;
   const entries: PlanEntry[] = [];
   for (const f of added) {
