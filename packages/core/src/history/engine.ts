@@ -447,6 +447,11 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
     const packed = u.origins;
     return !packed || u.tables!.every((h, i) => tableOrigins.has(h) || hasPackedOrigins(packed, i));
   };
+  /** The cached unit of an input set, when it can stand for this version. */
+  const usableUnit = (key: string): CachedUnit | undefined => {
+    const u = unitCache.get(key);
+    return u && usable(u) ? u : undefined;
+  };
 
   const stats = { assembled: 0, assembleCacheHits: 0, filesParsed: 0, fileCacheHits: 0 };
   const lastGood = new Map<string, { blob: string; facts: unknown }>();
@@ -513,10 +518,12 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
       const readDiagnostics: Diagnostic[] = [];
       let stale = false;
       let key: string;
+      /** The cached unit that stands for this version, once looked up (null: not yet). */
+      let cached: CachedUnit | undefined | null = null;
       if (!adapter.parseFile) {
         key = unitKeyOf(cand);
-        const hit = unitCache.get(key);
-        if (!hit || !usable(hit)) {
+        cached = usableUnit(key);
+        if (!cached) {
           for (const f of cand.files) {
             const got = await reader.read(f.blob);
             if (got.kind === 'text') {
@@ -588,8 +595,7 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
       }
 
       // ---- assemble (cached by the exact input set)
-      let unit = unitCache.get(key);
-      if (unit && !usable(unit)) unit = undefined;
+      let unit = cached === null ? usableUnit(key) : cached;
       if (unit) {
         stats.assembleCacheHits++;
       } else {
