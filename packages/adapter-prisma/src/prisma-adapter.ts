@@ -1,5 +1,5 @@
 import type { AdapterOptionValues, AssembleInput, AssembleResult, Diagnostic, SchemaAdapter } from '@schema-strata/core';
-import { assembleSchema, datasourceInfo, type JoinKeyRule, type ModelMemo } from './prisma-assemble.js';
+import { assembleSchema, datasourceInfo, runMemo, type JoinKeyRule, type RunMemo } from './prisma-assemble.js';
 import { PRISMA_OPTIONS } from './prisma-config.js';
 import { locatePrisma, PRISMA_WATCH } from './prisma-locate.js';
 import { modernise, parseWithEngine, unknownPreviewFeatures } from './prisma-parse.js';
@@ -12,7 +12,7 @@ import { renderPrismaDemo } from './prisma-demo.js';
  * schema (Prisma parses a multi-file schema as one unit), so a parse error fails the whole
  * version, which core then marks `carried`.
  */
-export function assemblePrisma(input: AssembleInput<unknown>, options: AdapterOptionValues, memo?: { previous: ModelMemo; next: ModelMemo; textIds: Map<string, number> }): AssembleResult {
+export function assemblePrisma(input: AssembleInput<unknown>, options: AdapterOptionValues, memo?: RunMemo): AssembleResult {
   const files = input.files.map((f) => ({ path: f.path, text: f.text ?? '' }));
   if (files.every((f) => f.text.trim() === '')) {
     return {
@@ -78,13 +78,13 @@ export const prismaAdapter: SchemaAdapter = Object.freeze<SchemaAdapter>({
   assemble: (input, options) => assemblePrisma(input, options),
   /** A run's session remembers the previous version's tables, so that unchanged models are not converted again. */
   createSession: (options) => {
-    let previous: ModelMemo = new Map();
-    const textIds = new Map<string, number>();
+    const memo = runMemo();
     return {
       assemble(input) {
-        const next: ModelMemo = new Map();
-        const result = assemblePrisma(input, options, { previous, next, textIds });
-        if (!('failed' in result)) previous = next;
+        const previous = memo.previous;
+        memo.next = new Map();
+        const result = assemblePrisma(input, options, memo);
+        memo.previous = 'failed' in result ? previous : memo.next;
         return result;
       },
     };

@@ -25,9 +25,26 @@ type TableInput = SnapshotInput['tables'][number];
 /**
  * Tables of the previous version, by a key that fixes everything their conversion reads: the
  * model's block text, the text of every enum and model it refers to, and the schema context.
- * A model whose key is unchanged is not converted again; only its origins (lines) are renewed.
+ * A model whose key is unchanged is not converted again: the version gets the very table object
+ * of the previous one, origins (lines) included. Core keeps a table's origins from the first
+ * version of the run that has it (AdapterSession), so lines that moved since are not needed.
  */
-export type ModelMemo = Map<string, { table: TableInput; fields: Array<string | undefined>; diagnostics: Diagnostic[] }>;
+export type ModelMemo = Map<string, { table: TableInput; diagnostics: Diagnostic[] }>;
+
+/** What a run's session keeps across versions besides the previous version's tables. */
+export interface RunMemo {
+  previous: ModelMemo;
+  next: ModelMemo;
+  /** A small number per distinct block text of the run. */
+  textIds: Map<string, number>;
+  /** Per block text number: the distinct type names of its fields, sorted. */
+  fieldTypes: Map<number, string[]>;
+}
+
+/** A fresh memo for a run's session. */
+export function runMemo(): RunMemo {
+  return { previous: new Map(), next: new Map(), textIds: new Map(), fieldTypes: new Map() };
+}
 
 const ACTIONS: Record<string, ReferentialAction> = {
   Cascade: 'cascade',
@@ -63,8 +80,14 @@ interface ModelInfo {
   table: string;
   namespace?: string;
   id: string;
-  fieldsByName: Map<string, DmmfField>;
+  /** The model's fields by name, built on first use (a model taken from the memo never needs it). */
+  fieldsByName?: Map<string, DmmfField>;
   block?: ScannedBlock;
+}
+
+function fieldNamed(info: ModelInfo, name: string): DmmfField | undefined {
+  info.fieldsByName ??= new Map(info.model.fields.map((f) => [f.name, f]));
+  return info.fieldsByName.get(name);
 }
 
 function qualified(name: string, namespace?: string): string {
@@ -79,7 +102,7 @@ export function assembleSchema(
   dm: Datamodel,
   blocks: ScannedBlock[],
   ctx: SchemaContext,
-  memo?: { previous: ModelMemo; next: ModelMemo; textIds: Map<string, number> },
+  memo?: RunMemo,
 ): { snapshot: SnapshotInput; diagnostics: Diagnostic[] } {
   const diagnostics: Diagnostic[] = [];
   const byName = new Map<string, ScannedBlock>();
@@ -96,7 +119,7 @@ export function assembleSchema(
       views.push({ name: table, ormName: m.name, ...(namespace ? { namespace } : {}), origin: { file: block.file, line: block.line } });
       continue;
     }
-    models.set(m.name, { model: m, table, namespace, id: qualified(table, namespace), block, fieldsByName: new Map(m.fields.map((f) => [f.name, f])) });
+    models.set(m.name, { model: m, table, namespace, id: qualified(table, namespace), block });
   }
 
   const modelNames = new Set([...byName.keys(), ...dm.models.map((m) => m.name)]);
@@ -118,20 +141,30 @@ export function assembleSchema(
   const ctxKey = `${ctx.provider}|${ctx.relationMode}|${ctx.joinKey}`;
   for (const info of models.values()) {
     if (!memo || !info.block) {
-      tables.push(modelTable(info, models, modelNames, enums, ctx, diagnostics).table);
+      tables.push(modelTable(info, models, modelNames, enums, ctx, diagnostics));
       continue;
     }
-    const refs = [...new Set(info.block.fields.map((f) => f.type))].filter((t) => blockId.has(t) && t !== info.model.name).sort();
-    const key = `${ctxKey}|${info.block.file}|${blockId.get(info.model.name)}|${refs.map((r) => `${r}=${blockId.get(r)}`).join(',')}`;
+    const own = blockId.get(info.model.name)!;
+    let types = memo.fieldTypes.get(own);
+    if (!types) {
+      types = [...new Set(info.block.fields.map((f) => f.type))].filter((t) => t !== info.model.name).sort();
+      memo.fieldTypes.set(own, types);
+    }
+    let key = `${ctxKey}|${info.block.file}|${own}|`;
+    for (const t of types) {
+      const n = blockId.get(t);
+      if (n !== undefined) key += `${t}=${n},`;
+    }
     let hit = memo.previous.get(key) ?? memo.next.get(key);
     if (!hit) {
       const ds: Diagnostic[] = [];
       const made = modelTable(info, models, modelNames, enums, ctx, ds);
-      hit = { table: made.table, fields: made.fields, diagnostics: ds };
+      made.contentKey = key;
+      hit = { table: made, diagnostics: ds };
     }
     memo.next.set(key, hit);
-    diagnostics.push(...hit.diagnostics);
-    tables.push(withCurrentOrigins(hit, info.block, key));
+    if (hit.diagnostics.length > 0) diagnostics.push(...hit.diagnostics);
+    tables.push(hit.table);
   }
   tables.push(...implicitJoinTables(models, ctx));
   tables.push(...ignoredModels(blocks, dm, modelNames, enums, ctx, diagnostics));
@@ -174,20 +207,6 @@ function scalarColumn(
   return col;
 }
 
-/** A memoised table with the origins of the current version (lines move when other blocks change). */
-function withCurrentOrigins(hit: { table: TableInput; fields: Array<string | undefined> }, block: ScannedBlock, key: string): TableInput {
-  const lines = new Map(block.fields.map((f) => [f.name, f.line]));
-  return {
-    ...hit.table,
-    contentKey: key,
-    origin: { file: block.file, line: block.line },
-    columns: hit.table.columns.map((c, i) => {
-      const line = lines.get(hit.fields[i] ?? '');
-      return line !== undefined ? { ...c, origin: { file: block.file, line } } : c;
-    }),
-  };
-}
-
 function modelTable(
   info: ModelInfo,
   models: Map<string, ModelInfo>,
@@ -195,19 +214,17 @@ function modelTable(
   enums: Map<string, Datamodel['enums'][number]>,
   ctx: SchemaContext,
   diagnostics: Diagnostic[],
-): { table: TableInput; fields: Array<string | undefined> } {
+): TableInput {
   const { model, block } = info;
   const scannedFields = new Map((block?.fields ?? []).map((f) => [f.name, f]));
   const columns: Column[] = [];
-  /** The field each column comes from, for origins. */
-  const fields: Array<string | undefined> = [];
   const uniques: UniqueConstraint[] = [];
   const fks: ForeignKey[] = [];
   // Walk fields in source order when the scan has them, so that columns keep declaration order,
   // including the ones the engine's data model leaves out (@ignore, Unsupported).
   const order: Array<{ dmmf?: DmmfField; scanned?: ScannedField }> = [];
   if (block) {
-    for (const sf of block.fields) order.push({ dmmf: info.fieldsByName.get(sf.name), scanned: sf });
+    for (const sf of block.fields) order.push({ dmmf: fieldNamed(info, sf.name), scanned: sf });
     for (const f of model.fields) if (!scannedFields.has(f.name)) order.push({ dmmf: f });
   } else {
     for (const f of model.fields) order.push({ dmmf: f });
@@ -217,7 +234,6 @@ function modelTable(
       if (dmmf.kind === 'object') continue;
       const col = scalarColumn(dmmf, ctx, enums, scanned, block?.file);
       columns.push(col);
-      fields.push(dmmf.name);
       // the engine's data model leaves `isUnique` unset on an `@id @unique` field, whose column still gets a unique index
       if (dmmf.isUnique || (scanned && hasAttribute(scanned.attributes, '@unique'))) uniques.push({ columns: [col.name] });
       continue;
@@ -226,13 +242,12 @@ function modelTable(
       const col = scannedColumn(scanned, ctx, enums, block!.file, modelNames);
       if (col) {
         columns.push(col);
-        fields.push(scanned.name);
         if (hasAttribute(scanned.attributes, '@unique')) uniques.push({ columns: [col.name] });
       }
     }
   }
   const dbCol = (field: string): string => {
-    const f = info.fieldsByName.get(field);
+    const f = fieldNamed(info, field);
     if (f) return columnName(f);
     const sf = scannedFields.get(field);
     return (sf && attributeString(sf.attributes, '@map')) ?? field;
@@ -258,12 +273,12 @@ function modelTable(
     }
     const cols = f.relationFromFields.map(dbCol);
     const refCols = (f.relationToFields ?? []).map((n) => {
-      const tf = target.fieldsByName.get(n);
+      const tf = fieldNamed(target, n);
       return tf ? columnName(tf) : n;
     });
     // the engine's "referential arity": required when any referencing field is required, else the
     // relation field's own arity (prisma-engines, psl: RelationFieldWalker::referential_arity)
-    const required = f.relationFromFields.some((n) => info.fieldsByName.get(n)?.isRequired === true) || f.isRequired;
+    const required = f.relationFromFields.some((n) => fieldNamed(info, n)?.isRequired === true) || f.isRequired;
     const fk: ForeignKey = {
       columns: cols,
       referencedTable: target.id,
@@ -294,7 +309,7 @@ function modelTable(
   };
   if (info.namespace) t.namespace = info.namespace;
   if (block) t.origin = { file: block.file, line: block.line };
-  return { table: t, fields };
+  return t;
 }
 
 /**

@@ -104,21 +104,32 @@ export function scanSchema(file: string, text: string): ScannedBlock[] {
   return blocks;
 }
 
+/** Compiled patterns by attribute name and kind (names are few; each pattern is built once). */
+const patterns = new Map<string, RegExp>();
+function attributePattern(kind: 'string' | 'present' | 'open', name: string): RegExp {
+  const key = `${kind}\u0000${name}`;
+  let re = patterns.get(key);
+  if (!re) {
+    const n = name.replace(/[.@]/g, (c) => `\\${c}`);
+    re = new RegExp(kind === 'string' ? `${n}\\(\\s*(?:name\\s*:\\s*)?"((?:[^"\\\\]|\\\\.)*)"` : kind === 'present' ? `${n}(?![\\w.])` : `${n}\\(`);
+    patterns.set(key, re);
+  }
+  return re;
+}
+
 /** The first string argument of an attribute, e.g. `@map("x")` -> `x`. */
 export function attributeString(attrs: string, name: string): string | undefined {
-  const re = new RegExp(`${name.replace(/[.@]/g, (c) => `\\${c}`)}\\(\\s*(?:name\\s*:\\s*)?"((?:[^"\\\\]|\\\\.)*)"`);
-  return re.exec(attrs)?.[1];
+  return attributePattern('string', name).exec(attrs)?.[1];
 }
 
 /** Whether an attribute is present (`@id`, `@unique`, `@ignore`, ...), not as a prefix of a longer one. */
 export function hasAttribute(attrs: string, name: string): boolean {
-  const re = new RegExp(`${name.replace(/[.@]/g, (c) => `\\${c}`)}(?![\\w.])`);
-  return re.test(attrs);
+  return attributePattern('present', name).test(attrs);
 }
 
 /** The text inside the balanced parentheses of an attribute, e.g. `@default(now())` -> `now()`. */
 export function attributeArgs(attrs: string, name: string): string | undefined {
-  const at = attrs.search(new RegExp(`${name.replace(/[.@]/g, (c) => `\\${c}`)}\\(`));
+  const at = attrs.search(attributePattern('open', name));
   if (at < 0) return undefined;
   let depth = 0;
   let inString = false;

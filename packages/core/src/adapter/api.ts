@@ -132,6 +132,13 @@ export interface DemoStory {
   steps: DemoStep[];
 }
 
+/**
+ * One run's stateful assembler. Core keeps a table's origins (file and line of the table and of
+ * its columns) from the first version of the run that has that table, and reads no later ones.
+ * So a session may hand back, for an unchanged table, the very object it handed back for an
+ * earlier version, with the origins of then: core then takes it as stored without reading it
+ * again (lines that moved since do not matter). A fresh session starts every run.
+ */
 export interface AdapterSession<Facts = unknown> {
   assemble(input: AssembleInput<Facts>): AssembleResult | Promise<AssembleResult>;
 }
