@@ -1,4 +1,4 @@
-import type { AdapterOptionValues, SchemaAdapter, SourceFile } from '@schema-strata/core';
+import type { AdapterOptionValues, SchemaAdapter, SourceFile } from '@schema-strata/core/extract';
 import { assembleKnex, KnexSession } from './knex-assemble.js';
 import { KNEX_OPTIONS, knexOptions } from './knex-config.js';
 import { renderKnexDemo } from './knex-demo.js';
@@ -15,7 +15,7 @@ import { ADAPTER_VERSION } from './version.js';
  *
  * @example
  * ```ts
- * import { extractHistory } from '@schema-strata/core';
+ * import { extractHistory } from '@schema-strata/core/extract';
  * import knex from '@schema-strata/adapter-knex';
  *
  * const history = await extractHistory({ repo: '.', adapter: knex, adapterOptions: { 'knex-init': ['db/base.js'] } });

@@ -6,8 +6,8 @@ import type {
   AssembleResult,
   Diagnostic,
   SnapshotInput,
-} from '@schema-strata/core';
-import { canonicalJson, contentHash } from '@schema-strata/core';
+} from '@schema-strata/core/extract';
+import { canonicalJson, contentHash } from '@schema-strata/core/extract';
 import type { KnexFacts } from './knex-facts.js';
 import { knexOptions, type KnexOptions } from './knex-config.js';
 import { isKnexfile, knexfileSettings, migrationIndices, resolveImport } from './knex-locate.js';

@@ -1,4 +1,4 @@
-import type { AdapterOption, AdapterOptionValues } from '@schema-strata/core';
+import type { AdapterOption, AdapterOptionValues } from '@schema-strata/core/extract';
 import { DIALECTS, type Dialect } from './knex-types.js';
 
 /** Options of the Knex adapter (shown by `schema-strata extract --help`; also settable in schema-strata.config.json `options`). */

@@ -1,4 +1,4 @@
-import type { DemoColumn, DemoCommitFiles, DemoRelation, DemoStep, DemoStory, DemoTable } from '@schema-strata/core';
+import type { DemoColumn, DemoCommitFiles, DemoRelation, DemoStep, DemoStory, DemoTable } from '@schema-strata/core/extract';
 
 /*
  * Core's demo story written as Knex migrations: one knexfile, and one new migration per step,

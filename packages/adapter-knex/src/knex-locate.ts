@@ -1,5 +1,5 @@
 import { posix } from 'node:path';
-import { BlobMemo, type AdapterOptionValues, type Diagnostic, type Located, type LocateRequest, type TreeView } from '@schema-strata/core';
+import { BlobMemo, type AdapterOptionValues, type Diagnostic, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
 import type { Val } from './knex-facts.js';
 import { isArr, isObj, member, parseKnexSource } from './knex-parse.js';
 import { knexOptions } from './knex-config.js';

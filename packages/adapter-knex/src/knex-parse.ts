@@ -1,5 +1,5 @@
 import { createRequire } from 'node:module';
-import type { Diagnostic, FileFacts, SourceFile } from '@schema-strata/core';
+import type { Diagnostic, FileFacts, SourceFile } from '@schema-strata/core/extract';
 import type { Arg, Call, Chain, Cond, ExportEntry, FnIR, FnRef, KnexFacts, Param, Root, Stmt, Val } from './knex-facts.js';
 
 type TsModule = typeof import('ts-morph').ts;

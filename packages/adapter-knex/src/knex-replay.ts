@@ -1,5 +1,5 @@
-import type { Diagnostic, GeneratedKind, NeutralType, Origin, ReferentialAction } from '@schema-strata/core';
-import { tableId } from '@schema-strata/core';
+import type { Diagnostic, GeneratedKind, NeutralType, Origin, ReferentialAction } from '@schema-strata/core/extract';
+import { tableId } from '@schema-strata/core/extract';
 import type { Arg, Chain, Cond, FnIR, KnexFacts, Param, Root, Stmt, Val } from './knex-facts.js';
 import { PMap } from './knex-pmap.js';
 import { TrackedMap, type MapAccess } from './knex-track.js';

@@ -1,4 +1,4 @@
-import { withPrecision, type GeneratedKind, type NeutralType } from '@schema-strata/core';
+import { withPrecision, type GeneratedKind, type NeutralType } from '@schema-strata/core/extract';
 
 /** Database families whose type mappings differ in Knex's column compilers. */
 export type Dialect = 'postgresql' | 'mysql' | 'sqlite' | 'mssql' | 'oracle';

@@ -1,4 +1,4 @@
-import type { AdapterOptionValues, AssembleInput, AssembleResult, Diagnostic, SchemaAdapter } from '@schema-strata/core';
+import type { AdapterOptionValues, AssembleInput, AssembleResult, Diagnostic, SchemaAdapter } from '@schema-strata/core/extract';
 import { assembleSchema, datasourceInfo, runMemo, type JoinKeyRule, type RunMemo } from './prisma-assemble.js';
 import { PRISMA_OPTIONS } from './prisma-config.js';
 import { locatePrisma, PRISMA_WATCH } from './prisma-locate.js';
@@ -61,7 +61,7 @@ export function assemblePrisma(input: AssembleInput<unknown>, options: AdapterOp
  *
  * @example
  * ```ts
- * import { extractHistory } from '@schema-strata/core';
+ * import { extractHistory } from '@schema-strata/core/extract';
  * import prisma from '@schema-strata/adapter-prisma';
  *
  * const history = await extractHistory({ repo: '.', adapter: prisma });

@@ -1,4 +1,4 @@
-import type { Column, Diagnostic, ForeignKey, ReferentialAction, SnapshotInput, UniqueConstraint } from '@schema-strata/core';
+import type { Column, Diagnostic, ForeignKey, ReferentialAction, SnapshotInput, UniqueConstraint } from '@schema-strata/core/extract';
 import type { Datamodel, DmmfField, DmmfModel } from './prisma-parse.js';
 import {
   attributeArgs,

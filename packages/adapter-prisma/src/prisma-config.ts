@@ -1,4 +1,4 @@
-import type { AdapterOption } from '@schema-strata/core';
+import type { AdapterOption } from '@schema-strata/core/extract';
 
 /** Options of the Prisma adapter (shown by `schema-strata extract --help`). */
 export const PRISMA_OPTIONS: readonly AdapterOption[] = Object.freeze([

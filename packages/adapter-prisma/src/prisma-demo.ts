@@ -1,4 +1,4 @@
-import type { DemoColumn, DemoCommitFiles, DemoStep, DemoStory, DemoTable } from '@schema-strata/core';
+import type { DemoColumn, DemoCommitFiles, DemoStep, DemoStory, DemoTable } from '@schema-strata/core/extract';
 
 const ACTION = { cascade: 'Cascade', restrict: 'Restrict', 'set null': 'SetNull' } as const;
 

@@ -1,6 +1,6 @@
 import { createRequire } from 'node:module';
 import { posix } from 'node:path';
-import { BlobMemo, type Located, type LocateRequest, type TreeView } from '@schema-strata/core';
+import { BlobMemo, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
 
 const CONFIG_NAMES = ['prisma.config.ts', 'prisma.config.mts', 'prisma.config.cts', 'prisma.config.js', 'prisma.config.mjs', 'prisma.config.cjs'];
 

@@ -1,5 +1,5 @@
 import { createRequire } from 'node:module';
-import type { Diagnostic } from '@schema-strata/core';
+import type { Diagnostic } from '@schema-strata/core/extract';
 
 /** The engine's data model (the subset of Prisma's DMMF datamodel that the adapter reads). */
 export interface DmmfField {

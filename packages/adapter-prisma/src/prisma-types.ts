@@ -1,4 +1,4 @@
-import type { NeutralType } from '@schema-strata/core';
+import type { NeutralType } from '@schema-strata/core/extract';
 
 export type Provider = 'postgresql' | 'mysql' | 'sqlite' | 'sqlserver' | 'cockroachdb' | 'mongodb' | string;
 

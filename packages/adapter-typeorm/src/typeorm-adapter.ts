@@ -1,4 +1,4 @@
-import type { AdapterOptionValues, FileFacts, SchemaAdapter, SourceFile } from '@schema-strata/core';
+import type { AdapterOptionValues, FileFacts, SchemaAdapter, SourceFile } from '@schema-strata/core/extract';
 import { assembleTypeorm, TypeormAssembler } from './typeorm-assemble.js';
 import { TYPEORM_OPTIONS } from './typeorm-config.js';
 import { renderTypeormDemo } from './typeorm-demo.js';
@@ -18,7 +18,7 @@ function parseFile(file: SourceFile, _options: AdapterOptionValues): FileFacts<T
  *
  * @example
  * ```ts
- * import { extractHistory } from '@schema-strata/core';
+ * import { extractHistory } from '@schema-strata/core/extract';
  * import typeorm from '@schema-strata/adapter-typeorm';
  *
  * const history = await extractHistory({ repo: '.', adapter: typeorm, adapterOptions: { 'typeorm-naming': 'snake' } });

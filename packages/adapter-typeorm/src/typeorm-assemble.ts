@@ -2,7 +2,7 @@ import { posix } from 'node:path';
 import type {
   AdapterOptionValues, AssembleInput, AssembleResult, Column, Diagnostic, ForeignKey, GeneratedKind, Origin, ReferentialAction,
   SnapshotInput, UniqueConstraint,
-} from '@schema-strata/core';
+} from '@schema-strata/core/extract';
 import { readSettings, type TypeormSettings } from './typeorm-config.js';
 import {
   classKey, DecoratorReader, schemaKey,

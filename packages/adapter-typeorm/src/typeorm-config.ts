@@ -1,4 +1,4 @@
-import type { AdapterOption, AdapterOptionValues, Diagnostic } from '@schema-strata/core';
+import type { AdapterOption, AdapterOptionValues, Diagnostic } from '@schema-strata/core/extract';
 
 /** TypeORM's decorators the adapter interprets (and that `--typeorm-decorator` may name). */
 export const TYPEORM_DECORATORS = [

@@ -1,4 +1,4 @@
-import type { Origin } from '@schema-strata/core';
+import type { Origin } from '@schema-strata/core/extract';
 import type { TypeormSettings } from './typeorm-config.js';
 import {
   enumValuesOf, get, isArrE, isDecoE, isFnE, isObjE, isSymE, isUnk, numOf, str, symName, textOf,

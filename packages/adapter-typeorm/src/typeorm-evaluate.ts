@@ -1,5 +1,5 @@
 import { posix } from 'node:path';
-import type { Diagnostic } from '@schema-strata/core';
+import type { Diagnostic } from '@schema-strata/core/extract';
 import { TYPEORM_DECORATORS } from './typeorm-config.js';
 import { ModuleResolver, nearestTsconfig, tsconfigView, type TsconfigView } from './typeorm-modules.js';
 import type {

@@ -1,5 +1,5 @@
 import { posix } from 'node:path';
-import { BlobMemo, type Located, type LocateRequest, type TreeView } from '@schema-strata/core';
+import { BlobMemo, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
 import { readSettings, TYPEORM_DECORATORS } from './typeorm-config.js';
 import { globMatcher, isDeclarationFile, ModuleResolver, nearestTsconfig, SOURCE_FILE, tsconfigView, type TsconfigView } from './typeorm-modules.js';
 import { isOrmconfigPath, isTsconfigPath, parseTypeormFile, type ConfigFact, type TsconfigFact, type TypeormFileFacts, type Value } from './typeorm-parse.js';

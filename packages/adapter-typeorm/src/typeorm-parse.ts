@@ -1,5 +1,5 @@
 import { createRequire } from 'node:module';
-import type { Diagnostic, FileFacts, SourceFile } from '@schema-strata/core';
+import type { Diagnostic, FileFacts, SourceFile } from '@schema-strata/core/extract';
 import type { ts as TsNamespace } from 'ts-morph';
 
 /**

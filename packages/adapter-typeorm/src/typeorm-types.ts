@@ -1,4 +1,4 @@
-import { withPrecision, type NeutralType } from '@schema-strata/core';
+import { withPrecision, type NeutralType } from '@schema-strata/core/extract';
 
 /**
  * Column types: what TypeORM records as a column's type (a type name as written, or the
