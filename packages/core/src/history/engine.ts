@@ -111,6 +111,9 @@ interface CachedUnit {
   /** In memory only (never written): the origins as the adapter gave them. */
   rawOrigins?: TableOrigins[];
   views?: ViewRef[];
+  /** The snapshot's storage and meaning hashes (absent in packs written before they were stored). */
+  sh?: string;
+  mh?: string;
   failed?: boolean;
   d: Diagnostic[];
   c?: Record<string, number>;
@@ -131,12 +134,18 @@ interface CachedOrigins {
   key: string;
   origins: PackedOrigins;
 }
+/** The changes from one snapshot to the next (by their storage hashes), without the version index. */
+interface CachedChanges {
+  k: 'c';
+  key: string;
+  ch: Array<Omit<Change, 'version'>>;
+}
 interface CachedFacts {
   k: 'f';
   b: string;
   r: FileFacts<unknown>;
 }
-type CacheRecord = CachedUnit | CachedTable | CachedFacts | CachedOrigins;
+type CacheRecord = CachedUnit | CachedTable | CachedFacts | CachedOrigins | CachedChanges;
 
 /** The options that change an adapter's output, in a stable form: part of every cache key. */
 export function outputOptions(adapter: SchemaAdapter, values: AdapterOptionValues): Record<string, unknown> {
@@ -413,9 +422,11 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
   const factsCache = new Map<string, FileFacts<unknown>>();
   const cachedTables = new Map<string, Table>();
   const cachedMeanings = new Map<string, string>();
+  const cachedChanges = new Map<string, Array<Omit<Change, 'version'>>>();
   if (pack) {
     for (const r of pack.loaded) {
       if (r.k === 's') unitCache.set(r.key, r);
+      else if (r.k === 'c') cachedChanges.set(r.key, r.ch);
       else if (r.k === 't') {
         cachedTables.set(r.h, r.t);
         if (r.m) cachedMeanings.set(r.h, r.m);
@@ -619,6 +630,8 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
             tables: made.snapshot.tables.map((t) => t.hash),
             rawOrigins: made.origins,
             views: made.snapshot.views,
+            sh: made.snapshot.hash,
+            mh: made.snapshot.meaningHash,
             d: [...readDiagnostics, ...result.diagnostics],
             ...(result.counters && Object.keys(result.counters).length > 0 ? { c: result.counters } : {}),
           };
@@ -647,10 +660,16 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
           continue;
         }
       } else {
-        const tables = unit.tables!.map((h) => store.getTable(h) ?? store.internKnown(h, cachedTables.get(h)!, cachedMeanings.get(h)));
-        snapshot = store.assembleSnapshot(tables, unit.views ?? []);
-        const existing = snapshots.get(snapshot.hash);
-        if (existing) snapshot = existing;
+        // a snapshot seen before in this run is taken as it is; else built from its stored tables
+        // (its hashes as the cache kept them, when it did)
+        snapshot = (unit.sh !== undefined ? snapshots.get(unit.sh) : undefined) ?? null;
+        if (!snapshot) {
+          const tables = unit.tables!.map((h) => store.getTable(h) ?? store.internKnown(h, cachedTables.get(h)!, cachedMeanings.get(h)));
+          snapshot = unit.sh !== undefined && unit.mh !== undefined
+            ? { hash: unit.sh, meaningHash: unit.mh, tables, views: unit.views ?? [] }
+            : store.assembleSnapshot(tables, unit.views ?? []);
+          snapshot = snapshots.get(snapshot.hash) ?? snapshot;
+        }
         loadOrigins(unit);
         unit.tables!.forEach((h, i) => {
           if (!tableOrigins.has(h)) {
@@ -670,7 +689,18 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
       snapshots.set(snapshot.hash, snapshot);
       if (status !== 'carried' && (lastPresent === null || lastPresent !== snapshot)) {
         if (lastPresent === null || lastPresent.meaningHash !== snapshot.meaningHash) {
-          changes.push(...diffSnapshots(index, lastPresent, snapshot));
+          // the changes between two snapshots are the same wherever they meet: cached by their hashes
+          const ckey = `${lastPresent?.hash ?? ''}>${snapshot.hash}`;
+          const known = cachedChanges.get(ckey);
+          if (known) {
+            for (const ch of known) changes.push({ version: index, ...ch });
+          } else {
+            const made = diffSnapshots(index, lastPresent, snapshot);
+            changes.push(...made);
+            const ch = made.map(({ version: _v, ...rest }) => rest);
+            cachedChanges.set(ckey, ch);
+            pack?.add({ k: 'c', key: ckey, ch });
+          }
         }
       }
       lastPresent = snapshot;
