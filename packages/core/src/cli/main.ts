@@ -1,20 +1,32 @@
 import { Command, CommanderError } from 'commander';
 import { UsageError, EXIT } from '../util/errors.js';
 import { VERSION } from '../version.js';
-import { registerStudy } from './study-command.js';
-import { registerWorker } from './worker-command.js';
 import { adaptersForOptions, type CliIO } from './common.js';
-import { registerDemo } from './demo-command.js';
-import { registerExtract } from './extract-command.js';
-import { registerShow } from './show-command.js';
-import { registerAdapters } from './adapters-command.js';
-import { registerAnalyze } from './analyze-command.js';
-import { registerDiff } from './diff-command.js';
-import { registerExport } from './export-command.js';
-import { registerReport } from './report-command.js';
+import type { SchemaAdapter } from '../adapter/api.js';
 
-/** Commands that other modules of core add (analysis, writers), registered in order. */
-export const commandRegistry: Array<(program: Command, io: CliIO, setCode: (c: number) => void) => void> = [registerAnalyze, registerExport, registerReport];
+type Register = (program: Command, io: CliIO, adapters: SchemaAdapter[], setCode: (c: number) => void) => void;
+
+/**
+ * The commands, in the order help lists them. Each module is loaded only when its command runs
+ * (or for help), so that `extract` does not load the analysis, the writers, the report and the
+ * study code with their libraries.
+ */
+const COMMANDS: ReadonlyArray<{ name: string; load: () => Promise<Register> }> = [
+  { name: 'extract', load: async () => (await import('./extract-command.js')).registerExtract },
+  { name: 'show', load: async () => (await import('./show-command.js')).registerShow },
+  { name: 'diff', load: async () => (await import('./diff-command.js')).registerDiff },
+  { name: 'analyze', load: async () => plain((await import('./analyze-command.js')).registerAnalyze) },
+  { name: 'export', load: async () => plain((await import('./export-command.js')).registerExport) },
+  { name: 'report', load: async () => plain((await import('./report-command.js')).registerReport) },
+  { name: 'study', load: async () => plain((await import('./study-command.js')).registerStudy) },
+  { name: 'worker', load: async () => plain((await import('./worker-command.js')).registerWorker) },
+  { name: 'adapters', load: async () => plain((await import('./adapters-command.js')).registerAdapters) },
+  { name: 'demo', load: async () => plain((await import('./demo-command.js')).registerDemo) },
+];
+
+function plain(reg: (program: Command, io: CliIO, setCode: (c: number) => void) => void): Register {
+  return (program, io, _adapters, setCode) => reg(program, io, setCode);
+}
 
 const EXIT_CODES_HELP = `
 Exit codes:
@@ -24,8 +36,6 @@ Exit codes:
   3   --strict: the run completed but reported diagnostics of severity error
   70  internal error (a bug in schema-strata; please report it)
 `;
-
-commandRegistry.push(registerStudy, registerWorker);
 
 /** The CLI: parse `argv` (without node and script), run the command, return the exit code. */
 export async function main(argv: string[], io: CliIO = { stdout: process.stdout, stderr: process.stderr, env: process.env }): Promise<number> {
@@ -48,12 +58,9 @@ export async function main(argv: string[], io: CliIO = { stdout: process.stdout,
   program.configureHelp({ sortSubcommands: false, showGlobalOptions: false });
 
   const adapters = await adaptersForOptions(argv);
-  registerExtract(program, io, adapters, setCode);
-  registerShow(program, io, adapters, setCode);
-  registerDiff(program, io, adapters, setCode);
-  for (const reg of commandRegistry) reg(program, io, setCode);
-  registerAdapters(program, io, setCode);
-  registerDemo(program, io, setCode);
+  // the named command alone; every command for help, --version, an unknown command or none
+  const named = COMMANDS.find((c) => c.name === argv[0]);
+  for (const c of named ? [named] : COMMANDS) (await c.load())(program, io, adapters, setCode);
   for (const c of program.commands) {
     c.exitOverride();
     c.configureOutput({
