@@ -3,7 +3,7 @@ import { assembleSchema, datasourceInfo, runMemo, type JoinKeyRule, type RunMemo
 import { PRISMA_OPTIONS } from './prisma-config.js';
 import { locatePrisma, PRISMA_WATCH } from './prisma-locate.js';
 import { modernise, parseWithEngine, unknownPreviewFeatures } from './prisma-parse.js';
-import { scanSchema } from './prisma-scan.js';
+import { rescanFile, scanFile, scanSchema } from './prisma-scan.js';
 import { ADAPTER_VERSION } from './version.js';
 import { renderPrismaDemo } from './prisma-demo.js';
 
@@ -20,7 +20,14 @@ export function assemblePrisma(input: AssembleInput<unknown>, options: AdapterOp
       diagnostics: files.map((f) => ({ severity: 'error' as const, code: 'prisma/empty-schema', file: f.path, message: `${f.path} is empty` })),
     };
   }
-  const blocks = files.flatMap((f) => scanSchema(f.path, f.text));
+  const blocks = files.flatMap((f) => {
+    if (!memo) return scanSchema(f.path, f.text);
+    // from the file's scan at the version before, when there is one: only what changed is scanned
+    const before = memo.scans.get(f.path);
+    const scan = before ? rescanFile(before, f.text) : scanFile(f.path, f.text);
+    memo.scans.set(f.path, scan);
+    return scan.blocks;
+  });
   const ds = datasourceInfo(blocks);
   if (ds.provider === 'mongodb') {
     return {

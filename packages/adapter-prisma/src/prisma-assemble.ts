@@ -4,8 +4,10 @@ import {
   attributeArgs,
   attributeString,
   dbAttribute,
+  fieldLine,
   hasAttribute,
   listArgument,
+  type FileScan,
   type ScannedBlock,
   type ScannedField,
 } from './prisma-scan.js';
@@ -39,11 +41,13 @@ export interface RunMemo {
   textIds: Map<string, number>;
   /** Per block text number: the distinct type names of its fields, sorted. */
   fieldTypes: Map<number, string[]>;
+  /** The last scan of each schema file, by path, for the next version's incremental scan. */
+  scans: Map<string, FileScan>;
 }
 
 /** A fresh memo for a run's session. */
 export function runMemo(): RunMemo {
-  return { previous: new Map(), next: new Map(), textIds: new Map(), fieldTypes: new Map() };
+  return { previous: new Map(), next: new Map(), textIds: new Map(), fieldTypes: new Map(), scans: new Map() };
 }
 
 const ACTIONS: Record<string, ReferentialAction> = {
@@ -176,7 +180,7 @@ function scalarColumn(
   ctx: SchemaContext,
   enums: Map<string, Datamodel['enums'][number]>,
   scanned?: ScannedField,
-  file?: string,
+  block?: ScannedBlock,
 ): Column {
   const name = columnName(f);
   let type;
@@ -203,7 +207,7 @@ function scalarColumn(
   if (def !== undefined) col.default = def;
   const dname = (f.default as { name?: string } | undefined)?.name;
   if (dname === 'autoincrement' || dname === 'sequence') col.generated = 'autoincrement';
-  if (scanned && file) col.origin = { file, line: scanned.line };
+  if (scanned && block) col.origin = { file: block.file, line: fieldLine(block, scanned) };
   return col;
 }
 
@@ -232,14 +236,14 @@ function modelTable(
   for (const { dmmf, scanned } of order) {
     if (dmmf) {
       if (dmmf.kind === 'object') continue;
-      const col = scalarColumn(dmmf, ctx, enums, scanned, block?.file);
+      const col = scalarColumn(dmmf, ctx, enums, scanned, block);
       columns.push(col);
       // the engine's data model leaves `isUnique` unset on an `@id @unique` field, whose column still gets a unique index
       if (dmmf.isUnique || (scanned && hasAttribute(scanned.attributes, '@unique'))) uniques.push({ columns: [col.name] });
       continue;
     }
     if (scanned) {
-      const col = scannedColumn(scanned, ctx, enums, block!.file, modelNames);
+      const col = scannedColumn(scanned, ctx, enums, block!, modelNames);
       if (col) {
         columns.push(col);
         if (hasAttribute(scanned.attributes, '@unique')) uniques.push({ columns: [col.name] });
@@ -333,7 +337,7 @@ function scannedColumn(
   sf: ScannedField,
   ctx: SchemaContext,
   enums: Map<string, Datamodel['enums'][number]>,
-  file: string,
+  block: ScannedBlock,
   modelNames: Set<string>,
 ): Column | undefined {
   if (modelNames.has(sf.type)) return undefined; // a relation field, not a column
@@ -355,7 +359,7 @@ function scannedColumn(
     nativeType = nativeTypeText(sf.type, sf.list, native);
   }
   if (sf.list) type = { kind: 'array' as const, of: type };
-  const col: Column = { name, type, nativeType, nullable: sf.list ? true : sf.optional, origin: { file, line: sf.line } };
+  const col: Column = { name, type, nativeType, nullable: sf.list ? true : sf.optional, origin: { file: block.file, line: fieldLine(block, sf) } };
   if (name !== sf.name) col.ormName = sf.name;
   const def = attributeArgs(sf.attributes, '@default');
   if (def !== undefined) col.default = def.trim();
@@ -421,7 +425,7 @@ function implicitJoinTables(models: Map<string, ModelInfo>, ctx: SchemaContext):
     if (a.namespace) t.namespace = a.namespace;
     const origin = sides[0]!.model.block;
     const field = origin?.fields.find((f) => f.name === sides[0]!.field.name);
-    if (origin) t.origin = { file: origin.file, line: field?.line ?? origin.line };
+    if (origin) t.origin = { file: origin.file, line: field ? fieldLine(origin, field) : origin.line };
     out.push(t);
   }
   return out;
@@ -448,7 +452,7 @@ function ignoredModels(
     const uniques: UniqueConstraint[] = [];
     let primaryKey: string[] = [];
     for (const sf of b.fields) {
-      const col = scannedColumn(sf, ctx, enums, b.file, modelNames);
+      const col = scannedColumn(sf, ctx, enums, b, modelNames);
       if (!col) continue;
       columns.push(col);
       if (hasAttribute(sf.attributes, '@id')) primaryKey.push(col.name);
