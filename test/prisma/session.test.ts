@@ -35,7 +35,40 @@ function counting(): { adapter: SchemaAdapter; reused: () => number } {
   return { adapter, reused: () => reused };
 }
 
+/** A small history where what one model reads of another changes, and where it does not. */
+function facetHistory(): Array<{ date: string; message: string; files: Record<string, string> }> {
+  const head = 'datasource db {\n  provider = "postgresql"\n}\n\n';
+  const enumKind = (values: string[]): string => `enum Kind {\n${values.map((v) => `  ${v}\n`).join('')}}\n\n`;
+  const tool = (o: { idMap?: boolean; tableMap?: boolean; extra?: boolean; pad?: boolean }): string =>
+    `model Tool {\n  id${o.pad ? '    ' : ''} Int @id${o.idMap ? ' @map("tool_id")' : ''}\n  label String\n  kind Kind\n${o.extra ? '  note String?\n' : ''}  loans Loan[]\n${o.tableMap ? '  @@map("tools")\n' : ''}}\n\n`;
+  const loan = 'model Loan {\n  id Int @id\n  toolId Int\n  tool Tool @relation(fields: [toolId], references: [id])\n}\n';
+  const steps = [
+    head + enumKind(['DRILL', 'SAW']) + tool({}) + loan,
+    head + enumKind(['DRILL', 'SAW']) + tool({ idMap: true }) + loan,
+    head + enumKind(['DRILL', 'SAW']) + tool({ idMap: true, tableMap: true }) + loan,
+    head + enumKind(['DRILL', 'SAW', 'LADDER']) + tool({ idMap: true, tableMap: true }) + loan,
+    head + enumKind(['DRILL', 'SAW', 'LADDER']) + tool({ idMap: true, tableMap: true, extra: true }) + loan,
+    head + enumKind(['DRILL', 'SAW', 'LADDER']) + tool({ idMap: true, tableMap: true, extra: true, pad: true }) + loan,
+  ];
+  return steps.map((text, i) => ({ date: `2024-0${i + 1}-01T10:00:00+00:00`, message: `step ${i}`, files: { 'prisma/schema.prisma': text } }));
+}
+
 describe('the Prisma session', () => {
+  it('converts a model again when what it reads of another changes (a mapped key column, a table name, enum values), and only then', async () => {
+    const repo = await makeRepo(tmp.dir, 'facets', facetHistory());
+    const { adapter, reused } = counting();
+    const withSession = await extractHistory({ repo, adapter });
+    const { createSession: _s, ...stateless } = prisma;
+    const without = await extractHistory({ repo, adapter: stateless as SchemaAdapter });
+    const doc = (h: typeof without): string => serialiseDocument(toDocument(h, GENERATOR));
+    expect(doc(withSession)).toBe(doc(without));
+    // Loan's foreign key follows Tool's mapped key column (version 1) and table name (version 2)
+    const loanChanges = withSession.changes.filter((c) => c.table === 'Loan').map((c) => [c.version, c.kind]);
+    expect(loanChanges.map(([v]) => v)).toEqual(expect.arrayContaining([1, 2]));
+    // taken over unchanged: Loan at versions 3, 4 and 5, Tool at version 5 (reformatted only)
+    expect(reused()).toBe(4);
+  });
+
   for (const seed of [3, 11]) {
     it(`gives the bytes of a run without a session (seed ${seed})`, async () => {
       const { commits } = prismaHistoryCommits({ commits: 140, models: 24, seed });

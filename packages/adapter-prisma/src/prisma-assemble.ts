@@ -26,7 +26,8 @@ type TableInput = SnapshotInput['tables'][number];
 
 /**
  * Tables of the previous version, by a key that fixes everything their conversion reads: the
- * model's block text, the text of every enum and model it refers to, and the schema context.
+ * model's block structure (see `structureOf`), for each type its fields name the structure of
+ * that enum or the table name and mapped column names of that model, and the schema context.
  * A model whose key is unchanged is not converted again: the version gets the very table object
  * of the previous one, origins (lines) included. Core keeps a table's origins from the first
  * version of the run that has it (AdapterSession), so lines that moved since are not needed.
@@ -37,17 +38,23 @@ export type ModelMemo = Map<string, { table: TableInput; diagnostics: Diagnostic
 export interface RunMemo {
   previous: ModelMemo;
   next: ModelMemo;
-  /** A small number per distinct block text of the run. */
-  textIds: Map<string, number>;
-  /** Per block text number: the distinct type names of its fields, sorted. */
+  /** A small number per distinct block structure of the run. */
+  structureIds: Map<string, number>;
+  /** The structure number of a scanned block, by its fields list (a moved block shares it). */
+  blockStructure: WeakMap<object, number>;
+  /** Per structure number: the distinct type names of its fields, sorted. */
   fieldTypes: Map<number, string[]>;
+  /** Per structure number of a model: its fields mapped to other column names, as text. */
+  mappedFields: Map<number, string>;
+  /** A small number per distinct facet (table name and mapped fields) of a referenced model. */
+  facetIds: Map<string, number>;
   /** The last scan of each schema file, by path, for the next version's incremental scan. */
   scans: Map<string, FileScan>;
 }
 
 /** A fresh memo for a run's session. */
 export function runMemo(): RunMemo {
-  return { previous: new Map(), next: new Map(), textIds: new Map(), fieldTypes: new Map(), scans: new Map() };
+  return { previous: new Map(), next: new Map(), structureIds: new Map(), blockStructure: new WeakMap(), fieldTypes: new Map(), mappedFields: new Map(), facetIds: new Map(), scans: new Map() };
 }
 
 const ACTIONS: Record<string, ReferentialAction> = {
@@ -99,6 +106,48 @@ function qualified(name: string, namespace?: string): string {
 }
 
 /**
+ * What the conversion reads of a block's text: its keyword and name, each field's name, type,
+ * modifiers and attribute text, and the block attributes; not the whitespace between them,
+ * comments or lines, so that a reformatted or moved block keeps its structure.
+ */
+function structureOf(b: ScannedBlock): string {
+  let out = `${b.keyword} ${b.name}`;
+  for (const f of b.fields) out += `\n${f.name} ${f.type}${f.list ? '[]' : ''}${f.optional ? '?' : ''} ${f.attributes}`;
+  for (const a of b.blockAttributes) out += `\n${a}`;
+  return out;
+}
+
+function structureId(memo: RunMemo, b: ScannedBlock): number {
+  let n = memo.blockStructure.get(b.fields);
+  if (n === undefined) {
+    const text = structureOf(b);
+    n = memo.structureIds.get(text);
+    if (n === undefined) {
+      n = memo.structureIds.size;
+      memo.structureIds.set(text, n);
+    }
+    memo.blockStructure.set(b.fields, n);
+  }
+  return n;
+}
+
+/** What a model that refers to this one reads of it: its table name and its fields' column names where mapped. */
+function facetId(memo: RunMemo, info: ModelInfo, structure: number | undefined): number {
+  let mapped = structure === undefined ? undefined : memo.mappedFields.get(structure);
+  if (mapped === undefined) {
+    mapped = info.model.fields.filter((f) => f.dbName && f.dbName !== f.name).map((f) => `${f.name}=${f.dbName}`).join(',');
+    if (structure !== undefined) memo.mappedFields.set(structure, mapped);
+  }
+  const facet = `${info.id}|${mapped}`;
+  let n = memo.facetIds.get(facet);
+  if (n === undefined) {
+    n = memo.facetIds.size;
+    memo.facetIds.set(facet, n);
+  }
+  return n;
+}
+
+/**
  * Prisma's engine data model (plus the scanned source) to neutral tables. Conventions followed
  * are those of the engine version the adapter ships (see the package README).
  */
@@ -128,18 +177,12 @@ export function assembleSchema(
 
   const modelNames = new Set([...byName.keys(), ...dm.models.map((m) => m.name)]);
   const tables: TableInput[] = [];
-  // each block's text gets a small number (the same text, the same number, for the whole run),
-  // so that a model's memo key is short: its own number and those of the blocks it refers to
+  // each block's structure gets a small number (the same structure, the same number, for the
+  // whole run), so that a model's memo key is short
   const blockId = new Map<string, number>();
   if (memo) {
     for (const b of blocks) {
-      if (b.keyword !== 'model' && b.keyword !== 'enum' && b.keyword !== 'view') continue;
-      let n = memo.textIds.get(b.text);
-      if (n === undefined) {
-        n = memo.textIds.size;
-        memo.textIds.set(b.text, n);
-      }
-      blockId.set(b.name, n);
+      if (b.keyword === 'model' || b.keyword === 'enum' || b.keyword === 'view' || b.keyword === 'type') blockId.set(b.name, structureId(memo, b));
     }
   }
   const ctxKey = `${ctx.provider}|${ctx.relationMode}|${ctx.joinKey}`;
@@ -156,8 +199,13 @@ export function assembleSchema(
     }
     let key = `${ctxKey}|${info.block.file}|${own}|`;
     for (const t of types) {
+      // a model it refers to: only its facet; an enum, view or type: its structure (an enum the
+      // scan did not find: the engine's account of it)
+      const target = models.get(t);
       const n = blockId.get(t);
-      if (n !== undefined) key += `${t}=${n},`;
+      if (target) key += `${t}=m${facetId(memo, target, n)},`;
+      else if (n !== undefined) key += `${t}=s${n},`;
+      else if (enums.has(t)) key += `${t}=e${JSON.stringify(enums.get(t))},`;
     }
     let hit = memo.previous.get(key) ?? memo.next.get(key);
     if (!hit) {
