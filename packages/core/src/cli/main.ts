@@ -7,12 +7,14 @@ import type { SchemaAdapter } from '../adapter/api.js';
 type Register = (program: Command, io: CliIO, adapters: SchemaAdapter[], setCode: (c: number) => void) => void;
 
 /**
- * The commands, in the order help lists them. Each module is loaded only when its command runs
- * (or for help), so that `extract` does not load the analysis, the writers, the report and the
- * study code with their libraries.
+ * The commands, in the order help lists them (and registered in this order: a command that
+ * hooks into another comes after it). Each module is loaded only when its command runs, with
+ * the commands that hook into it (`also`: the analysis embeds itself in `extract`, the report
+ * in `demo`), or for help; so that `show` or `adapters` do not load the analysis, the writers,
+ * the report and the study code with their libraries.
  */
-const COMMANDS: ReadonlyArray<{ name: string; load: () => Promise<Register> }> = [
-  { name: 'extract', load: async () => (await import('./extract-command.js')).registerExtract },
+const COMMANDS: ReadonlyArray<{ name: string; also?: readonly string[]; load: () => Promise<Register> }> = [
+  { name: 'extract', also: ['analyze'], load: async () => (await import('./extract-command.js')).registerExtract },
   { name: 'show', load: async () => (await import('./show-command.js')).registerShow },
   { name: 'diff', load: async () => (await import('./diff-command.js')).registerDiff },
   { name: 'analyze', load: async () => plain((await import('./analyze-command.js')).registerAnalyze) },
@@ -21,7 +23,7 @@ const COMMANDS: ReadonlyArray<{ name: string; load: () => Promise<Register> }> =
   { name: 'study', load: async () => plain((await import('./study-command.js')).registerStudy) },
   { name: 'worker', load: async () => plain((await import('./worker-command.js')).registerWorker) },
   { name: 'adapters', load: async () => plain((await import('./adapters-command.js')).registerAdapters) },
-  { name: 'demo', load: async () => plain((await import('./demo-command.js')).registerDemo) },
+  { name: 'demo', also: ['extract', 'analyze', 'report'], load: async () => plain((await import('./demo-command.js')).registerDemo) },
 ];
 
 function plain(reg: (program: Command, io: CliIO, setCode: (c: number) => void) => void): Register {
@@ -58,9 +60,11 @@ export async function main(argv: string[], io: CliIO = { stdout: process.stdout,
   program.configureHelp({ sortSubcommands: false, showGlobalOptions: false });
 
   const adapters = await adaptersForOptions(argv);
-  // the named command alone; every command for help, --version, an unknown command or none
+  // the named command and those that hook into it; every command for help, --version, an
+  // unknown command or none
   const named = COMMANDS.find((c) => c.name === argv[0]);
-  for (const c of named ? [named] : COMMANDS) (await c.load())(program, io, adapters, setCode);
+  const wanted = named ? new Set([named.name, ...(named.also ?? [])]) : null;
+  for (const c of COMMANDS) if (!wanted || wanted.has(c.name)) (await c.load())(program, io, adapters, setCode);
   for (const c of program.commands) {
     c.exitOverride();
     c.configureOutput({
