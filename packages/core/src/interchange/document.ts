@@ -48,20 +48,24 @@ export interface InterchangeDocument {
 
 /** Build the interchange document of a history. Deterministic: only the history's content decides it. */
 export function toDocument(h: History, generator: { name: string; version: string }): InterchangeDocument {
-  const snapshots: Record<string, InterchangeSnapshot> = {};
-  const tables: Record<string, Table> = {};
+  // (maps while collecting, records at the end: lookups in large records are slow)
+  const snapshotMap = new Map<string, InterchangeSnapshot>();
+  const tableMap = new Map<string, Table>();
   const ids = new Set<string>();
   const statuses: Record<string, number> = {};
   for (const v of h.versions) {
     statuses[v.status] = (statuses[v.status] ?? 0) + 1;
-    if (!v.snapshot || snapshots[v.snapshot]) continue;
+    if (!v.snapshot || snapshotMap.has(v.snapshot)) continue;
     const s = h.snapshots.get(v.snapshot)!;
-    snapshots[s.hash] = { meaningHash: s.meaningHash, tables: s.tables.map((t) => t.hash), views: s.views };
+    snapshotMap.set(s.hash, { meaningHash: s.meaningHash, tables: s.tables.map((t) => t.hash), views: s.views });
     for (const st of s.tables) {
+      if (tableMap.has(st.hash)) continue;
       ids.add(st.table.id);
-      if (!tables[st.hash]) tables[st.hash] = withOrigins(st.table, h.tableOrigins.get(st.hash));
+      tableMap.set(st.hash, withOrigins(st.table, h.tableOrigins.get(st.hash)));
     }
   }
+  const snapshots: Record<string, InterchangeSnapshot> = Object.fromEntries(snapshotMap);
+  const tables: Record<string, Table> = Object.fromEntries(tableMap);
   const first = h.versions[0]!;
   const last = h.versions[h.versions.length - 1]!;
   return {
