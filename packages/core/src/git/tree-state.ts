@@ -31,6 +31,17 @@ export class TreeState {
     return this.files.get(path);
   }
 
+  /** Every path and its blob (for a checkpoint of the walk). */
+  entries(): Array<[string, string]> {
+    return [...this.files.entries()];
+  }
+
+  /** Start from the paths and blobs a checkpoint kept. */
+  seed(entries: ReadonlyArray<readonly [string, string]>): void {
+    for (const [path, blob] of entries) this.files.set(path, blob);
+    this.sorted = null;
+  }
+
   paths(): string[] {
     if (!this.sorted) this.sorted = [...this.files.keys()].sort();
     return this.sorted;

@@ -1,4 +1,5 @@
 import { appendFileSync, existsSync, mkdirSync, readFileSync } from 'node:fs';
+import { readFile } from 'node:fs/promises';
 import { homedir } from 'node:os';
 import { join } from 'node:path';
 
@@ -32,12 +33,26 @@ export class RecordPack<R extends { k: string }> {
   readonly loaded: R[] = [];
   private readonly deferredLines = new Map<string, string>();
 
-  constructor(dir: string, namespace: string, deferred: readonly string[] = []) {
+  /**
+   * Open a pack, reading its file in the background: the file is read, and its records parsed,
+   * while the caller waits for other work (a run's git log pass, say).
+   */
+  static async open<R extends { k: string }>(dir: string, namespace: string, deferred: readonly string[] = []): Promise<RecordPack<R>> {
+    const file = join(dir, `${namespace}.jsonl`);
+    const text = await readFile(file, 'utf8').catch((e: NodeJS.ErrnoException) => {
+      if (e.code === 'ENOENT') return null;
+      throw e;
+    });
+    return new RecordPack<R>(dir, namespace, deferred, text);
+  }
+
+  /** `text`: the file's content when the caller has read it (null: no file yet); else it is read here. */
+  constructor(dir: string, namespace: string, deferred: readonly string[] = [], text?: string | null) {
     mkdirSync(dir, { recursive: true });
     this.file = join(dir, `${namespace}.jsonl`);
     const prefixes = deferred.map((k) => `{"k":${JSON.stringify(k)},"key":"`);
-    if (existsSync(this.file)) {
-      const text = readFileSync(this.file, 'utf8');
+    if (text === undefined) text = existsSync(this.file) ? readFileSync(this.file, 'utf8') : null;
+    if (text !== null) {
       let start = 0;
       lines: while (start < text.length) {
         let end = text.indexOf('\n', start);

@@ -1,4 +1,5 @@
 import { createHash } from 'node:crypto';
+import { realpathSync } from 'node:fs';
 import type {
   AdapterOptionValues,
   AssembleFile,
@@ -17,7 +18,8 @@ import { canonicalJson } from '../model/canonical.js';
 import type { Diagnostic, Table, ViewRef } from '../model/types.js';
 import { UsageError, EXIT } from '../util/errors.js';
 import { RecordPack } from './disk-cache.js';
-import { SetKeys, sameRefs, sortedUnique, unpaired } from './set-key.js';
+import { refChanges, SetKeys, sameRefs, sortedUnique, unpaired } from './set-key.js';
+import { checkpointFile, onFirstParentLine, readCheckpoint, writeCheckpoint, type CheckpointCandidate, type WalkCheckpoint } from './walk-checkpoint.js';
 import { pathLineage } from './path-lineage.js';
 import { hasPackedOrigins, packOrigins, SnapshotStore, unpackOrigins, type BuiltSnapshot, type PackedOrigins, type TableOrigins } from './snapshot-store.js';
 import type { Progress } from '../util/progress.js';
@@ -71,6 +73,8 @@ export interface ExtractRequest {
 
 export interface RunStats {
   commitsLogged: number;
+  /** Of `commitsLogged`, those taken from the last run's walk (not logged or located again). */
+  commitsResumed: number;
   candidates: number;
   assembled: number;
   assembleCacheHits: number;
@@ -193,12 +197,28 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
   watch.push(...globs);
   const selection = logSelection(watch, literal.length > 0);
 
+  // the disk cache is read, and its records parsed, while git works on the log pass
+  const namespace = packNamespace(adapter, options);
+  const pack = req.cacheDir ? RecordPack.open<CacheRecord>(req.cacheDir, namespace, ['o']) : null;
+  // (a run that stops before it builds versions must not leave the read unhandled)
+  pack?.catch(() => undefined);
+
+  // ---- the walk of the last run over this repository and selection, when its head is still on
+  // the first-parent line: only the commits after it are logged and located. (Not when literal
+  // --path entries are followed back through renames: a rename after the last run's head would
+  // change which paths its commits hold.)
+  const walkKey = canonicalJson({ repo: realpathSync(repo.path), watch, maxBytes });
+  const walkFile = req.cacheDir && literal.length === 0 ? checkpointFile(req.cacheDir, namespace, hashText(walkKey).slice(0, 16)) : null;
+  let resumed = walkFile ? await readCheckpoint(walkFile, walkKey) : undefined;
+  if (resumed && !(await onFirstParentLine(repo.path, resumed.head, repo.head))) resumed = undefined;
+
   // ---- the log pass
   progress?.phase('reading history');
-  const commits = await logPass(repo.path, repo.head, selection.pathspecs, (n) => progress?.tick(n), {
+  const logged = resumed?.head === repo.head ? [] : await logPass(repo.path, resumed ? `${resumed.head}..${repo.head}` : repo.head, selection.pathspecs, (n) => progress?.tick(n), {
     renames: literal.length > 0,
     ...(selection.keep ? { keep: selection.keep } : {}),
   });
+  const commits = resumed ? [...resumed.commits, ...logged] : logged;
 
   // ---- the window
   const window = await resolveWindow(repo.path, repo.head, commits, req.since, req.until);
@@ -221,7 +241,10 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
     let searched: string | undefined;
     progress?.phase('locating the schema', commits.length);
     const walkId = {};
-    for (let i = 0; i < commits.length; i++) {
+    if (resumed) {
+      ({ prevFiles, prevPaths, prevPathRefs, ambiguousHint, unsupported, searched } = restoreWalk(resumed, tree, keys, commits, candidates, ambiguous));
+    }
+    for (let i = resumed ? resumed.commits.length : 0; i < commits.length; i++) {
       const c = commits[i]!;
       tree.apply(c.changes);
       const changed: string[] = [];
@@ -277,6 +300,13 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
       if (i % 256 === 0) progress?.tick(i + 1);
     }
     progress?.tick(commits.length);
+    if (walkFile && !(resumed?.head === repo.head)) {
+      writeCheckpoint(walkFile, {
+        key: walkKey, head: repo.head, commits, tree: tree.entries(), candidates: checkpointCandidates(candidates),
+        lastPaths: [...prevPaths], ambiguous: [...ambiguous.values()], ambiguousHint,
+        ...(unsupported !== undefined ? { unsupported } : {}), ...(searched !== undefined ? { searched } : {}),
+      });
+    }
 
     if (ambiguous.size > 0) {
       const list = [...ambiguous.values()].map((c) => c.join(' + ')).join('; ');
@@ -314,7 +344,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
 
     // ---- build every version
     const built = await buildVersions(inWindow, {
-      adapter, options, reader, cacheDir: req.cacheDir, progress, keys,
+      adapter, options, reader, pack: pack ? await pack : null, progress, keys,
     });
     if (built.versions.length === 0) throw new UsageError(`no version of the ${adapter.name} schema could be built: ${built.runDiagnostics.find((d) => d.severity === 'error')?.message ?? 'every one failed'}`, EXIT.failure);
     return {
@@ -330,11 +360,72 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
       tableOrigins: built.tableOrigins,
       changes: built.changes,
       diagnostics: built.runDiagnostics,
-      stats: { ...built.stats, commitsLogged: commits.length, candidates: candidates.length, blobsRead: reader.blobsRead },
+      stats: { ...built.stats, commitsLogged: commits.length, commitsResumed: resumed?.commits.length ?? 0, candidates: candidates.length, blobsRead: reader.blobsRead },
     };
   } finally {
     reader.close();
   }
+}
+
+/** The candidates as a checkpoint keeps them: each one's files as changes from the one before. */
+function checkpointCandidates(candidates: readonly Candidate[]): CheckpointCandidate[] {
+  let prev: readonly FileRef[] = [];
+  return candidates.map((c) => {
+    const { removed, added } = refChanges(prev, c.files);
+    prev = c.files;
+    return {
+      pos: c.pos,
+      add: added.map((f) => [f.path, f.blob] as [string, string]),
+      del: removed,
+      consulted: c.consulted.map((f) => [f.path, f.blob] as [string, string]),
+      diagnostics: c.diagnostics,
+    };
+  });
+}
+
+/** Put the walk state of a checkpoint back: the tree, the candidates and what the locate loop carries. */
+function restoreWalk(
+  cp: WalkCheckpoint,
+  tree: TreeState,
+  keys: SetKeys,
+  commits: readonly LoggedCommit[],
+  candidates: Candidate[],
+  ambiguous: Map<string, string[]>,
+): { prevFiles: FileRef[]; prevPaths: string[]; prevPathRefs: Array<FileRef | undefined>; ambiguousHint: string; unsupported?: string; searched?: string } {
+  tree.seed(cp.tree);
+  let cur: FileRef[] = [];
+  for (const c of cp.candidates) {
+    // merge the previous files (sorted by path) with the added ones (sorted too), leaving out the removed
+    const removed = new Set(c.del);
+    const next: FileRef[] = [];
+    let i = 0;
+    let j = 0;
+    while (i < cur.length || j < c.add.length) {
+      const a = c.add[j];
+      if (a === undefined || (i < cur.length && cur[i]!.path < a[0])) {
+        if (!removed.has(cur[i]!.path)) next.push(cur[i]!);
+        i++;
+      } else {
+        if (i < cur.length && cur[i]!.path === a[0]) i++;
+        next.push(keys.ref(a[0], a[1]));
+        j++;
+      }
+    }
+    cur = next;
+    candidates.push({
+      pos: c.pos, commit: commits[c.pos]!, files: cur,
+      consulted: c.consulted.map(([path, blob]) => ({ path, blob })), diagnostics: c.diagnostics,
+    });
+  }
+  for (const a of cp.ambiguous) ambiguous.set(a.join(', '), a);
+  const prevPathRefs = cp.lastPaths.map((p) => {
+    const blob = tree.get(p);
+    return blob ? keys.ref(p, blob) : undefined;
+  });
+  return {
+    prevFiles: cur, prevPaths: cp.lastPaths, prevPathRefs, ambiguousHint: cp.ambiguousHint,
+    ...(cp.unsupported !== undefined ? { unsupported: cp.unsupported } : {}), ...(cp.searched !== undefined ? { searched: cp.searched } : {}),
+  };
 }
 
 /** Positions (in the log) of the first and last commit inside the --since/--until window. */
@@ -405,17 +496,21 @@ interface BuildContext {
   adapter: SchemaAdapter;
   options: AdapterOptionValues;
   reader: BlobReader;
-  cacheDir?: string;
+  /** The disk cache, when there is one. */
+  pack: RecordPack<CacheRecord> | null;
   progress?: Progress;
 }
 
-async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
-  const { adapter, options, reader } = ctx;
+/** The disk cache's namespace of an adapter and its options. */
+function packNamespace(adapter: SchemaAdapter, options: AdapterOptionValues): string {
   const optionsKey = canonicalJson(outputOptions(adapter, options));
   // core's own version and pack format are in the key too: what core stores (meaning hashes,
   // say) is only valid for the core that computed it
-  const namespace = `${safeName(adapter.name)}-${safeName(adapter.version)}-${hashText(`${PACK_FORMAT}|${VERSION}|${optionsKey}`).slice(0, 12)}`;
-  const pack = ctx.cacheDir ? new RecordPack<CacheRecord>(ctx.cacheDir, namespace, ['o']) : null;
+  return `${safeName(adapter.name)}-${safeName(adapter.version)}-${hashText(`${PACK_FORMAT}|${VERSION}|${optionsKey}`).slice(0, 12)}`;
+}
+
+async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
+  const { adapter, options, reader, pack } = ctx;
 
   const store = new SnapshotStore();
   const unitCache = new Map<string, CachedUnit>();

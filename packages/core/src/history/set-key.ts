@@ -93,6 +93,14 @@ function walkUnpaired(prev: readonly FileRef[], next: readonly FileRef[], prevOn
   }
 }
 
+/** What changed from one sorted list of file references to the next: paths removed or given another blob, and the members new in `next`. */
+export function refChanges(prev: readonly FileRef[], next: readonly FileRef[]): { removed: string[]; added: FileRef[] } {
+  const removed: string[] = [];
+  const added: FileRef[] = [];
+  walkUnpaired(prev, next, (f) => removed.push(f.path), (f) => added.push(f));
+  return { removed, added };
+}
+
 /**
  * The members of `next` that a walk over both lists side by side (as in `SetKeys.key`) does not
  * pair with the same object in `prev`: for lists sorted by path, the members new in `next`.
