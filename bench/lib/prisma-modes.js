@@ -3,9 +3,10 @@ import { spawnSync, execFileSync } from 'node:child_process';
 import { writeFileSync } from 'node:fs';
 import { join, dirname } from 'node:path';
 import { createRequire } from 'node:module';
-import { extractHistory, toDocument, serialiseDocument, GENERATOR } from '@schema-strata/core';
+import { extractHistory, toDocument, serialiseDocument, GENERATOR } from '@schema-strata/core/extract';
 import prisma, { modernise } from '@schema-strata/adapter-prisma';
 import { readBlobs } from './git-blobs.js';
+import { cpuMark, cpuMsSince } from './cpu.js';
 
 const [mode, repo, cache] = process.argv.slice(2);
 const require = createRequire(import.meta.url);
@@ -14,6 +15,7 @@ const parse = (path, text) => JSON.parse(wasm.get_datamodel(JSON.stringify({ pri
 const SCHEMA = 'prisma/schema.prisma';
 
 const t0 = process.hrtime.bigint();
+const c0 = cpuMark();
 let out = {};
 if (mode === 'extract') {
   const h = await extractHistory({ repo, adapter: prisma, cacheDir: cache });
@@ -43,6 +45,7 @@ if (mode === 'extract') {
 }
 const ms = Number(process.hrtime.bigint() - t0) / 1e6;
 out.ms = Math.round(ms);
+out.cpuMs = Math.round(cpuMsSince(c0));
 out.maxRssMB = Math.round(process.resourceUsage().maxRSS / 1024);
 console.log(JSON.stringify(out));
 
