@@ -185,7 +185,10 @@ export function assembleSchema(
       if (b.keyword === 'model' || b.keyword === 'enum' || b.keyword === 'view' || b.keyword === 'type') blockId.set(b.name, structureId(memo, b));
     }
   }
-  const ctxKey = `${ctx.provider}|${ctx.relationMode}|${ctx.joinKey}`;
+  // the context, and (to be safe) the datasource and generator blocks as written: a change there
+  // converts every model again
+  let ctxKey = `${ctx.provider}|${ctx.relationMode}|${ctx.joinKey}`;
+  for (const b of blocks) if (b.keyword === 'datasource' || b.keyword === 'generator') ctxKey += `|${b.text}`;
   for (const info of models.values()) {
     if (!memo || !info.block) {
       tables.push(modelTable(info, models, modelNames, enums, ctx, diagnostics));
