@@ -112,7 +112,11 @@ export function logSelection(globs: readonly string[], exact: boolean): { pathsp
     return m[1]!.startsWith('*') ? m[1]! : `*${m[1]}`;
   });
   const match = matcher(globs);
-  return { pathspecs, keep: (path) => !NODE_MODULES.test(path) && match(path) };
+  // pathspecs that all start with a wildcard prune no directory: git then matches every entry
+  // of every tree a commit changes against them, dearer than listing every change and
+  // filtering here (measured on the Knex benchmark's log: `*.*[jt]s` 680–810 ms, none 460–550 ms)
+  const prunes = pathspecs.some((p) => !p.startsWith('*'));
+  return { pathspecs: prunes ? pathspecs : [], keep: (path) => !NODE_MODULES.test(path) && match(path) };
 }
 
 export function matcher(globs: readonly string[]): (path: string) => boolean {
