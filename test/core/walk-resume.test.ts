@@ -2,8 +2,9 @@
 // run over the same repository logs and locates only the commits after that head. Checked
 // against a run without any cache, byte for byte: after commits are appended (one by one and
 // several at once, touching the schema or not), with no new commit, after the branch was rewound
-// and rewritten (the checkpoint must not be used), with a revision window, with Prisma and with
-// Knex (whose locate step carries state from commit to commit).
+// and rewritten or the checkpoint file damaged (it must not be used), with a revision window,
+// with Prisma and with Knex (whose locate step carries state from commit to commit).
+import { readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { appendCommits, extractHistory, serialiseDocument, toDocument, GENERATOR, type ExtractRequest, type ScriptedCommit } from '@schema-strata/core';
@@ -54,6 +55,21 @@ describe('resuming the walk of the last run', () => {
     const h = await extractHistory({ repo, adapter: prisma, cacheDir });
     expect(h.stats.commitsResumed).toBe(0);
     expect(serialiseDocument(toDocument(h, GENERATOR))).toBe(await doc({ repo, adapter: prisma }));
+  }, 60_000);
+
+  it('walks the whole history again when the checkpoint file is damaged', async () => {
+    const { commits } = prismaHistoryCommits({ commits: 30, models: 8, seed: 9 });
+    const repo = await makeRepo(tmp.dir, 'damaged', commits);
+    const cacheDir = join(tmp.dir, 'cache-damaged');
+    await extractHistory({ repo, adapter: prisma, cacheDir });
+    const file = readdirSync(cacheDir).find((f) => f.includes('.walk-'))!;
+    expect(file).toBeDefined();
+    for (const damage of ['not json', '{"v":1}', JSON.stringify({ ...JSON.parse(readFileSync(join(cacheDir, file), 'utf8')), candidates: null })]) {
+      writeFileSync(join(cacheDir, file), damage);
+      const h = await extractHistory({ repo, adapter: prisma, cacheDir });
+      expect(h.stats.commitsResumed).toBe(0);
+      expect(serialiseDocument(toDocument(h, GENERATOR))).toBe(await doc({ repo, adapter: prisma }));
+    }
   }, 60_000);
 
   it('gives the bytes of an uncached run for Knex, whose locate step carries state along the walk', async () => {

@@ -50,14 +50,20 @@ export function checkpointFile(cacheDir: string, namespace: string, keyHash: str
 export async function readCheckpoint(file: string, key: string): Promise<WalkCheckpoint | undefined> {
   try {
     const c = JSON.parse(await readFile(file, 'utf8')) as WalkCheckpoint;
-    return c && c.v === WALK_FORMAT && c.key === key && typeof c.head === 'string' && Array.isArray(c.commits) ? c : undefined;
+    const lists = c && [c.commits, c.tree, c.candidates, c.lastPaths, c.ambiguous].every((x) => Array.isArray(x));
+    return lists && c.v === WALK_FORMAT && c.key === key && typeof c.head === 'string' && typeof c.ambiguousHint === 'string' ? c : undefined;
   } catch {
     return undefined;
   }
 }
 
+/** Write a checkpoint; a cache directory that cannot take it costs only the next run's speed. */
 export function writeCheckpoint(file: string, c: Omit<WalkCheckpoint, 'v'>): void {
-  writeFileAtomic(file, JSON.stringify({ v: WALK_FORMAT, ...c }));
+  try {
+    writeFileAtomic(file, JSON.stringify({ v: WALK_FORMAT, ...c }));
+  } catch {
+    // the run goes on without it
+  }
 }
 
 /**
