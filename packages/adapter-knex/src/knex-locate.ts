@@ -1,5 +1,5 @@
 import { posix } from 'node:path';
-import { BlobMemo, type AdapterOptionValues, type Diagnostic, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
+import { BlobMemo, sortedIndex, sortedUnique, type AdapterOptionValues, type Diagnostic, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
 import type { Val } from './knex-facts.js';
 import { isArr, isObj, member, parseKnexSource } from './knex-parse.js';
 import { knexOptions } from './knex-config.js';
@@ -321,20 +321,10 @@ interface Carried {
 }
 const carriedByWalk = new WeakMap<object, Carried>();
 
-function sortedUnique(xs: readonly string[]): string[] {
-  return [...new Set(xs)].sort();
-}
-
 function sortedInsert(xs: string[], p: string): boolean {
-  let lo = 0;
-  let hi = xs.length;
-  while (lo < hi) {
-    const mid = (lo + hi) >> 1;
-    if (xs[mid]! < p) lo = mid + 1;
-    else hi = mid;
-  }
-  if (xs[lo] === p) return false;
-  xs.splice(lo, 0, p);
+  const at = sortedIndex(xs, p);
+  if (xs[at] === p) return false;
+  xs.splice(at, 0, p);
   return true;
 }
 

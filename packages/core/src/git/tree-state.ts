@@ -2,6 +2,7 @@ import picomatch from 'picomatch';
 import type { TreeView } from '../adapter/api.js';
 import type { BlobReader } from './blob-reader.js';
 import type { RawChange } from './log-pass.js';
+import { sortedIndex } from '../util/sorted.js';
 
 /** Regular files only: symbolic links (120000) and submodules (160000) are not schema files. */
 const isRegular = (mode: string): boolean => mode === '100644' || mode === '100755';
@@ -65,16 +66,8 @@ export class TreeState {
       under(dir) {
         const prefix = dir === '' || dir === '.' ? '' : dir.replace(/\/+$/, '') + '/';
         const all = self.paths();
-        // binary search for the first path with the prefix
-        let lo = 0;
-        let hi = all.length;
-        while (lo < hi) {
-          const mid = (lo + hi) >> 1;
-          if (all[mid]! < prefix) lo = mid + 1;
-          else hi = mid;
-        }
         const out: string[] = [];
-        for (let i = lo; i < all.length && all[i]!.startsWith(prefix); i++) out.push(all[i]!);
+        for (let i = sortedIndex(all, prefix); i < all.length && all[i]!.startsWith(prefix); i++) out.push(all[i]!);
         return out;
       },
     };

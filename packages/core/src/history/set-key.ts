@@ -123,21 +123,3 @@ export function sameRefs(a: readonly unknown[], b: readonly unknown[]): boolean 
   for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
   return true;
 }
-
-/** Sorted, without duplicates; the input is returned as is when it already is. */
-export function sortedUnique(xs: readonly string[]): string[] {
-  let ok = true;
-  for (let i = 1; i < xs.length; i++) {
-    if (!(xs[i - 1]! < xs[i]!)) {
-      ok = false;
-      break;
-    }
-  }
-  if (ok) return xs as string[];
-  // a sort that is quick on nearly sorted input, then equal neighbours dropped
-  const sorted = xs.slice().sort();
-  let n = 0;
-  for (let i = 0; i < sorted.length; i++) if (i === 0 || sorted[i] !== sorted[n - 1]) sorted[n++] = sorted[i]!;
-  sorted.length = n;
-  return sorted;
-}

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { SetKeys, sortedUnique, unpaired } from '../../src/history/set-key.js';
+import { SetKeys, unpaired } from '../../src/history/set-key.js';
 
 function rng(seed: number): () => number {
   let a = seed >>> 0;
@@ -37,15 +37,6 @@ describe('SetKeys', () => {
     expect(k.key([a, b])).toBe(new SetKeys().key([b, a]));
     expect(k.key([a])).not.toBe(k.key([a, b]));
     expect(k.key([a, b], ['missing\u0000z'])).not.toBe(k.key([a, b]));
-  });
-});
-
-describe('sortedUnique', () => {
-  it('sorts and drops duplicates, and hands back a list that already is', () => {
-    const sorted = ['a', 'b', 'c'];
-    expect(sortedUnique(sorted)).toBe(sorted);
-    expect(sortedUnique(['k', 'a', 'k', 'b', 'a'])).toEqual(['a', 'b', 'k']);
-    expect(sortedUnique([])).toEqual([]);
   });
 });
 
