@@ -25,17 +25,21 @@ beforeAll(async () => {
 });
 
 const parsed = (text: string): KnexFacts => (parseKnexSource(text) as { facts: KnexFacts }).facts;
+/** A migration as core hands it to the session: its path, a blob id standing for its text, its facts. */
+const migration = (name: string, body: string) => ({ path: `migrations/${name}`, blob: `${name}:${body}`, facts: parsed(`exports.up = async (knex) => { ${body} };\n`) });
+type Input = ReturnType<typeof migration>;
+/** What a new session gives for these files (the result every session must give). */
+const fresh = (files: Input[]) => new KnexSession(knexOptions({})).assemble({ files, missing: [] });
 
 describe('the fold across versions', () => {
   it('replays only the appended migration, and refolds from an edited one', () => {
-    const m = (name: string, body: string) => ({ path: `migrations/${name}`, blob: `${name}:${body.length}`, facts: parsed(`exports.up = async (knex) => { ${body} };\nexports.down = () => {};\n`) });
+    const m = migration;
     const a = m('001.js', "await knex.schema.createTable('a', (t) => { t.increments('id'); t.string('x', 10); });");
     const b = m('002.js', "await knex.schema.alterTable('a', (t) => { t.string('y'); });");
     const c = m('003.js', "await knex.schema.createTable('c', (t) => { t.increments('id'); t.integer('a_id').references('a.id'); });");
     const a2 = m('001.js', "await knex.schema.createTable('a', (t) => { t.increments('id'); t.string('x', 20); });");
     const session = new KnexSession(knexOptions({}));
-    const fresh = (files: ReturnType<typeof m>[]) => new KnexSession(knexOptions({})).assemble({ files, missing: [] });
-    const runs: Array<[ReturnType<typeof m>[], number]> = [
+    const runs: Array<[Input[], number]> = [
       [[a, b], 2],
       [[a, b, c], 1],
       [[a, b, c], 0],
@@ -52,7 +56,7 @@ describe('the fold across versions', () => {
   });
 
   it('after an edit, takes over the later migrations that did not read what the edit changed', () => {
-    const m = (name: string, body: string) => ({ path: `migrations/${name}`, blob: `${name}:${body}`, facts: parsed(`exports.up = async (knex) => { ${body} };\n`) });
+    const m = migration;
     const a = m('001.js', "await knex.schema.createTable('a', (t) => { t.increments('id'); t.string('x', 10); });");
     const d = m('002.js', "await knex.schema.createTable('d', (t) => { t.increments('id'); t.text('note'); });");
     const b = m('003.js', "await knex.schema.alterTable('a', (t) => { t.string('y'); });");
@@ -60,9 +64,8 @@ describe('the fold across versions', () => {
     const a2 = m('001.js', "await knex.schema.createTable('a', (t) => { t.increments('id'); t.string('x', 20); });");
     const r = m('005.js', "await knex.schema.alterTable('d', (t) => { t.renameColumn('note', 'remark'); });");
     const session = new KnexSession(knexOptions({}));
-    const fresh = (files: ReturnType<typeof m>[]) => new KnexSession(knexOptions({})).assemble({ files, missing: [] });
     // [files, replayed, taken over]
-    const runs: Array<[ReturnType<typeof m>[], number, number]> = [
+    const runs: Array<[Input[], number, number]> = [
       [[a, d, b, e], 4, 0],
       [[a2, d, b, e], 2, 2], // a and b replayed (b alters a); d and e did not look at a
       [[a2, b, e], 1, 1], // d gone: b (reads a) is taken over, e (reads d, now missing) replayed
@@ -79,15 +82,14 @@ describe('the fold across versions', () => {
 
   it('extends the last plan when migrations are only appended, and plans anew otherwise', () => {
     const knexfile = { path: 'knexfile.js', blob: 'k', facts: parsed("module.exports = { client: 'pg', migrations: { directory: 'migrations' } };\n") };
-    const m = (name: string, body: string) => ({ path: `migrations/${name}`, blob: `${name}:${body}`, facts: parsed(`exports.up = async (knex) => { ${body} };\n`) });
+    const m = migration;
     const a = m('001.js', "await knex.schema.createTable('a', (t) => { t.increments('id'); });");
     const b = m('002.js', "await knex.schema.createTable('b', (t) => { t.increments('id'); });");
     const c = m('003.js', "await knex.schema.alterTable('a', (t) => { t.string('label'); });");
     const early = m('0015.js', "await knex.schema.createTable('e', (t) => { t.increments('id'); });");
     const session = new KnexSession(knexOptions({}));
-    const fresh = (files: Array<typeof a>) => new KnexSession(knexOptions({})).assemble({ files, missing: [] });
     // [files, extended]
-    const runs: Array<[Array<typeof a>, boolean]> = [
+    const runs: Array<[Input[], boolean]> = [
       [[knexfile, a], false],
       [[knexfile, a, b], true],
       [[knexfile, a, b, c], true],
