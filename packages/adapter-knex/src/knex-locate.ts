@@ -335,6 +335,11 @@ function sortedInsert(xs: string[], p: string): boolean {
  * then the commit is located afresh.
  */
 async function carryForward(tree: TreeView, last: Carried, changed: readonly string[]): Promise<Carried | null> {
+  // the next commits' new files in the migration directories will be read here too: ask for them now
+  tree.walk?.readAhead?.((p) => {
+    const parent = posix.dirname(p);
+    return last.directories.includes(parent === '.' ? '' : parent);
+  });
   let migrations = last.migrations;
   for (const p of changed) {
     if (isKnexfile(p) || last.initNamed.includes(p)) return null;

@@ -236,6 +236,8 @@ export async function locateTypeorm(tree: TreeView, req: LocateRequest): Promise
   const all = tree.paths();
   const paths = Array.isArray(all) ? (all as string[]) : [...all];
   if (last && last.sig === sig && last.paths.length === paths.length && paths.every((p, i) => p === last!.paths[i])) {
+    // the next commits' changed source files will be scanned here too: ask for them now
+    tree.walk?.readAhead?.((p) => SOURCE_FILE.test(p) && !p.includes('node_modules/'));
     const changed: Array<[string, string]> = [];
     let same = true;
     for (const p of paths) {

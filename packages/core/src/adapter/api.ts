@@ -176,8 +176,13 @@ export interface TreeView {
    * commit, in a WeakMap), and `changed` lists the watched paths this commit added, changed or
    * deleted since the commit of the walk's previous call (a rename as both paths). Absent when
    * a view stands on its own (one commit built alone, adapter detection): assume nothing then.
+   *
+   * `readAhead`, when present, is a hint: the files that the next commits of the walk add or
+   * change and that `wanted` accepts are asked of git now, so that their texts are on their way
+   * while this process works (for a locate step that reads every new file of some kind; without
+   * it, each commit's read waits for git in turn). A file read ahead is kept until it is read.
    */
-  readonly walk?: { readonly id: object; readonly changed: readonly string[] };
+  readonly walk?: { readonly id: object; readonly changed: readonly string[]; readAhead?(wanted: (path: string) => boolean): void };
 }
 
 export interface LocateRequest {

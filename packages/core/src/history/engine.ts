@@ -82,6 +82,8 @@ export interface RunStats {
   filesParsed: number;
   fileCacheHits: number;
   blobsRead: number;
+  /** Blob reads the locate step asked for ahead of the commit that needs them (`TreeView.walk.readAhead`). */
+  blobsReadAhead: number;
 }
 
 export interface History {
@@ -106,6 +108,10 @@ export const DEFAULT_MAX_FILE_BYTES = 5 * 1024 * 1024;
 
 /** Layout of the disk cache's records; bump it when they change. */
 const PACK_FORMAT = 3;
+
+/** Read-ahead of blobs: when fewer than LOW versions (or commits) ahead are asked for, ask for the next BATCH. */
+const READ_AHEAD_LOW = 8;
+const READ_AHEAD_BATCH = 64;
 
 interface CachedUnit {
   k: 's';
@@ -242,6 +248,22 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
     let searched: string | undefined;
     progress?.phase('locating the schema', commits.length);
     const walkId = {};
+    // read-ahead for the locate step (see TreeView.walk): commits before `aheadTo` were scanned
+    let aheadTo = 0;
+    let readAheads = 0;
+    const readAheadFrom = (from: number) => (wanted: (path: string) => boolean): void => {
+      if (aheadTo >= from + READ_AHEAD_LOW) return;
+      const end = Math.min(commits.length, from + READ_AHEAD_BATCH);
+      for (let k = Math.max(aheadTo, from); k < end; k++) {
+        for (const ch of commits[k]!.changes) {
+          if (ch.status !== 'D' && ch.newMode.startsWith('100') && wanted(ch.path)) {
+            readAheads++;
+            void reader.read(ch.newBlob).catch(() => undefined);
+          }
+        }
+      }
+      aheadTo = Math.max(aheadTo, end);
+    };
     if (resumed) {
       ({ prevFiles, prevPaths, prevPathRefs, ambiguousHint, unsupported, searched } = restoreWalk(resumed, tree, keys, commits, candidates, ambiguous));
     }
@@ -253,7 +275,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
         changed.push(ch.path);
         if (ch.from !== ch.path) changed.push(ch.from);
       }
-      const view = tree.view(c.commit, reader, { id: walkId, changed });
+      const view = tree.view(c.commit, reader, { id: walkId, changed, readAhead: readAheadFrom(i + 1) });
       let located: Located;
       if (userPaths.length > 0) {
         const names = lineage ? lineage[i]! : [];
@@ -361,7 +383,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
       tableOrigins: built.tableOrigins,
       changes: built.changes,
       diagnostics: built.runDiagnostics,
-      stats: { ...built.stats, commitsLogged: commits.length, commitsResumed: resumed?.commits.length ?? 0, candidates: candidates.length, blobsRead: reader.blobsRead },
+      stats: { ...built.stats, commitsLogged: commits.length, commitsResumed: resumed?.commits.length ?? 0, candidates: candidates.length, blobsRead: reader.blobsRead, blobsReadAhead: readAheads },
     };
   } finally {
     reader.close();
@@ -574,8 +596,8 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
   const runDiagnostics: Diagnostic[] = [];
   let lastPresent: BuiltSnapshot | null = null;
 
-  // Ask the blob reader for the files of the next few versions ahead of time, so that git reads
-  // them while this process parses (only files that no cache covers).
+  // Ask the blob reader for the files of the versions ahead of time, so that git reads them while
+  // this process parses (only files that no cache covers).
   const unitKeys = new Map<Candidate, string>();
   const unitKeyOf = (cand: Candidate): string => {
     let k = unitKeys.get(cand);
@@ -606,7 +628,9 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
 
   ctx.progress?.phase('rebuilding versions', candidates.length);
   for (let vi = 0; vi < candidates.length; vi++) {
-    prefetch(vi + 8);
+    // in batches: each batch is one write to git and comes back in few reads (a write per
+    // version woke git once or twice per version, which cost more than git's own work)
+    if (prefetched < vi + READ_AHEAD_LOW) prefetch(vi + READ_AHEAD_BATCH);
     const cand = candidates[vi]!;
     const c = cand.commit;
     const diagnostics: Diagnostic[] = [...cand.diagnostics];

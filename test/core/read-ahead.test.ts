@@ -1,0 +1,77 @@
+// The locate steps of the Knex and TypeORM adapters ask core to read ahead the files that the next
+// commits of the walk add or change (TreeView.walk.readAhead), so that git reads them while the
+// walk goes on. It is a hint only: checked against the same adapters given walks without it, byte
+// for byte, over histories that add, edit, delete and rename the files it reads ahead, and with a
+// revision window; and the count of reads asked ahead shows that the hint was taken.
+import { afterAll, describe, expect, it } from 'vitest';
+import { extractHistory, serialiseDocument, toDocument, GENERATOR, type ExtractRequest, type SchemaAdapter, type ScriptedCommit } from '@schema-strata/core';
+import knexAdapter from '@schema-strata/adapter-knex';
+import typeormAdapter from '@schema-strata/adapter-typeorm';
+import { day, git, makeRepo, tempDir } from '../helpers/repo.js';
+
+const tmp = tempDir();
+afterAll(() => tmp.cleanup());
+
+/** The adapter with every walk stripped of its read-ahead. */
+function withoutReadAhead(adapter: SchemaAdapter): SchemaAdapter {
+  return {
+    ...adapter,
+    locate: (tree, req) => {
+      if (!tree.walk) return adapter.locate(tree, req);
+      const { readAhead: _r, ...walk } = tree.walk;
+      return adapter.locate(Object.assign(Object.create(tree) as typeof tree, { walk }), req);
+    },
+  };
+}
+
+const doc = async (req: ExtractRequest): Promise<string> => serialiseDocument(toDocument(await extractHistory(req), GENERATOR));
+
+const mig = (table: string, extra = '') =>
+  `exports.up = async (knex) => { await knex.schema.createTable('${table}', (t) => { t.increments('id'); t.string('label', 40);${extra} }); };\nexports.down = async () => {};\n`;
+
+const entity = (cls: string, extra = '') =>
+  `import { Entity, PrimaryGeneratedColumn, Column } from 'typeorm';\n\n@Entity()\nexport class ${cls} {\n  @PrimaryGeneratedColumn()\n  id!: number;\n\n  @Column()\n  label!: string;\n${extra}}\n`;
+
+describe('reading ahead during the walk', () => {
+  it('gives the bytes of a walk without it (Knex: appended, edited, deleted and renamed migrations)', async () => {
+    const files: ScriptedCommit['files'][] = [
+      { 'package.json': '{ "dependencies": { "knex": "^3.1.0" } }\n', 'knexfile.js': "module.exports = { client: 'pg', migrations: { directory: './db/migrations' } };\n", 'db/migrations/000_tools.js': mig('tools') },
+    ];
+    for (let i = 1; i <= 150; i++) {
+      const step: ScriptedCommit['files'] = { [`db/migrations/${String(i).padStart(3, '0')}_t${i}.js`]: mig(`t${i}`) };
+      if (i % 17 === 0) step['db/migrations/000_tools.js'] = mig('tools', ` t.integer('n${i}');`);
+      if (i % 23 === 0) step[`db/migrations/${String(i - 5).padStart(3, '0')}_t${i - 5}.js`] = null;
+      if (i % 31 === 0) step['src/app.js'] = `exports.v = ${i};\n`;
+      files.push(step);
+    }
+    const commits: ScriptedCommit[] = files.map((f, i) => ({ date: day(i), message: `step ${i}`, files: f }));
+    // a migration renamed (its place in the order kept)
+    commits.push({ date: day(files.length), message: 'rename', files: { 'db/migrations/010_t10.js': null, 'db/migrations/010_t10_renamed.js': mig('t10') } });
+    const repo = await makeRepo(tmp.dir, 'knex', commits);
+    const h = await extractHistory({ repo, adapter: knexAdapter });
+    expect(h.stats.blobsReadAhead).toBeGreaterThan(100);
+    expect(serialiseDocument(toDocument(h, GENERATOR))).toBe(await doc({ repo, adapter: withoutReadAhead(knexAdapter) }));
+    const mid = git(repo, 'rev-list', '--first-parent', '--skip=60', '-1', 'HEAD').trim();
+    expect(await doc({ repo, adapter: knexAdapter, since: mid })).toBe(await doc({ repo, adapter: withoutReadAhead(knexAdapter), since: mid }));
+  }, 120_000);
+
+  it('gives the bytes of a walk without it (TypeORM: entity files edited, added and removed, other sources changed)', async () => {
+    const files: ScriptedCommit['files'][] = [
+      { 'package.json': '{ "dependencies": { "typeorm": "^0.3.20" } }\n', 'src/entity/Tool.ts': entity('Tool'), 'src/entity/Member.ts': entity('Member') },
+    ];
+    for (let i = 1; i <= 80; i++) {
+      const step: ScriptedCommit['files'] = {};
+      if (i % 3 === 0) step['src/entity/Tool.ts'] = entity('Tool', `\n  @Column({ nullable: true })\n  note${i}?: string;\n`);
+      else if (i % 3 === 1) step['src/service.ts'] = `export const version = ${i};\n`;
+      else step['src/entity/Member.ts'] = entity('Member', `\n  @Column()\n  n${i}!: number;\n`);
+      if (i === 40) step['src/entity/Loan.ts'] = entity('Loan');
+      if (i === 70) step['src/entity/Loan.ts'] = null;
+      files.push(step);
+    }
+    const commits: ScriptedCommit[] = files.map((f, i) => ({ date: day(i), message: `step ${i}`, files: f }));
+    const repo = await makeRepo(tmp.dir, 'typeorm', commits);
+    const h = await extractHistory({ repo, adapter: typeormAdapter });
+    expect(h.stats.blobsReadAhead).toBeGreaterThan(40);
+    expect(serialiseDocument(toDocument(h, GENERATOR))).toBe(await doc({ repo, adapter: withoutReadAhead(typeormAdapter) }));
+  }, 120_000);
+});
