@@ -1,10 +1,13 @@
 // One measurement of the study benchmark, run in its own process: the repository phase of
 // `schema-strata study` (runStudyJobs: the pool of child processes extracting and analysing every
-// repository of the corpus), without the pooling that follows. Prints one JSON line.
+// repository of the corpus), without the pooling that follows. Prints one JSON line: wall time
+// and processor time (this process, its pool children and their git processes, all waited for).
 import { readCorpus, runStudyJobs, silentProgress } from '@schema-strata/core';
+import { cpuMark, cpuMsSince } from './cpu.js';
 
 const [corpus, out, jobs] = process.argv.slice(2);
 const t0 = process.hrtime.bigint();
+const cpu0 = cpuMark();
 const outcomes = await runStudyJobs({
   corpus: readCorpus(corpus),
   output: out,
@@ -13,4 +16,5 @@ const outcomes = await runStudyJobs({
   progress: silentProgress,
 });
 const ms = Number(process.hrtime.bigint() - t0) / 1e6;
-console.log(JSON.stringify({ ms, extracted: outcomes.filter((o) => o.status === 'extracted').length }));
+const cpuMs = cpuMsSince(cpu0);
+console.log(JSON.stringify({ ms, cpuMs, extracted: outcomes.filter((o) => o.status === 'extracted').length }));
