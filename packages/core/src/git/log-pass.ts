@@ -1,5 +1,5 @@
 import { spawn } from 'node:child_process';
-import { gitEnv } from './run-git.js';
+import { gitEnv, runGit } from './run-git.js';
 
 /** One entry of a commit's raw diff against its first parent. */
 export interface RawChange {
@@ -29,19 +29,71 @@ const RS = '\x1e';
 const US = '\x1f';
 
 /**
- * The log pass: one `git log` process over the first-parent line of `ref`, oldest first, with
+ * The log pass: `git log` over the first-parent line of `ref` (two processes at once, each over
+ * a part of the line, when it has LOG_SPLIT_MIN commits or more), oldest first, with
  * raw diffs (full blob ids) limited to `pathspecs` (and to the paths `keep` accepts, when given:
  * a commit left with no change is not listed). Rename detection (`renames`) is asked only
  * when literal `--path` entries must be followed back through moves: it is the costliest part
  * of the pass, and the tree state needs none (a rename is a deletion plus an addition). Merges are diffed
  * against their first parent, so what a merge brings in is seen at the merge.
  */
-export function logPass(
+export async function logPass(
   repo: string,
   ref: string,
   pathspecs: string[],
   onCommit?: (n: number) => void,
-  opts: { renames?: boolean; keep?: (path: string) => boolean } = {},
+  opts: LogOptions = {},
+): Promise<LoggedCommit[]> {
+  const splitAt = opts.splitAt ?? splitDefault;
+  if (ref.includes('..') || ref.startsWith('-') || !Number.isFinite(splitAt)) return logRange(repo, ref, pathspecs, onCommit, opts);
+  // a long line is logged in two parts at once, by two git processes: each commit's diff is
+  // against its first parent whichever part lists it, so the parts joined are the whole log
+  const line = await runGit(repo, ['rev-list', '--first-parent', '--end-of-options', ref, '--']);
+  const ids = line.code === 0 ? line.stdout.split('\n').filter(Boolean) : [];
+  if (ids.length < splitAt) return logRange(repo, ref, pathspecs, onCommit, opts);
+  // newest first; a commit's diff tends to cost with the size of its tree, which tends to grow, so
+  // the older part takes about 70% of the commits (equal halves of a cost that grows linearly)
+  const mid = ids[Math.floor(ids.length * 0.3)]!;
+  let older = 0;
+  let newer = 0;
+  const tick = onCommit ? () => onCommit(older + newer) : undefined;
+  const [a, b] = await Promise.all([
+    logRange(repo, mid, pathspecs, tick && ((n) => ((older = n), tick())), opts),
+    logRange(repo, `${mid}..${ref}`, pathspecs, tick && ((n) => ((newer = n), tick())), opts),
+  ]);
+  return a.concat(b);
+}
+
+export interface LogOptions {
+  /** Follow renames (`-M`): only for literal `--path` entries. */
+  renames?: boolean;
+  /** Keep only the changes of the paths it accepts (see `logSelection`). */
+  keep?: (path: string) => boolean;
+  /** Log a first-parent line of at least this many commits in two parts at once (default LOG_SPLIT_MIN, see `logInParts`; Infinity: never). */
+  splitAt?: number;
+}
+
+/** First-parent lines shorter than this are logged by one git process (a second would cost more than it saves). */
+export const LOG_SPLIT_MIN = 600;
+
+let splitDefault = LOG_SPLIT_MIN;
+
+/**
+ * Whether this process logs long lines in two parts (the default). A study's pool children turn
+ * it off: their parallelism is across repositories, and the `rev-list` that finds the split
+ * point is one more process for each repository, which costs there with the child's size.
+ */
+export function logInParts(on: boolean): void {
+  splitDefault = on ? LOG_SPLIT_MIN : Infinity;
+}
+
+/** One `git log` process over `ref` (a revision or a range), oldest first. */
+function logRange(
+  repo: string,
+  ref: string,
+  pathspecs: string[],
+  onCommit: ((n: number) => void) | undefined,
+  opts: LogOptions,
 ): Promise<LoggedCommit[]> {
   const args = [
     '-C', repo,

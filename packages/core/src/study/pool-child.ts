@@ -2,7 +2,11 @@
  * A child process of the study's worker pool (see `pool.ts`): it runs one repository job at a
  * time and answers with its outcome. It ends when its parent goes away.
  */
+import { logInParts } from '../git/log-pass.js';
 import { runRepository, type RepositoryJob } from './runner.js';
+
+// the pool runs repositories side by side: each one's log in one git process
+logInParts(false);
 
 const reply = (m: object): void => {
   // the parent may be gone (a killed worker): the result is on disk anyway
