@@ -198,7 +198,10 @@ export class SnapshotStore {
       }
       entries.push(e);
     }
-    entries.sort((a, b) => (a.id < b.id ? -1 : a.id > b.id ? 1 : 0));
+    // (adapters that keep their tables by id hand them over in order: checked, not sorted again)
+    let ordered = true;
+    for (let i = 1; i < entries.length && ordered; i++) ordered = entries[i - 1]!.id < entries[i]!.id;
+    if (!ordered) entries.sort((a, b) => (a.id < b.id ? -1 : a.id > b.id ? 1 : 0));
     const views = canonicalOrder({ tables: [], ...(input.views ? { views: input.views } : {}) }).views.map(({ origin: _o, ...v }) => v);
     return {
       snapshot: this.assembleSnapshot(entries.map((e) => e.st), views),
