@@ -39,8 +39,8 @@ class LimitReached extends Error {}
  * P = (prod r_i! prod c_j!) / (n! prod x_ij!). The two-sided p-value sums the probabilities of
  * every table with the observed margins that is no more probable than the observed one
  * (relative tolerance 1e-7). When there are more than `limit` such tables, `draws` tables are
- * drawn at random with the observed margins instead (a seeded 32-bit Mersenne Twister shuffles
- * the n observations between the cells) and p = (1 + hits) / (draws + 1).
+ * drawn at random with the observed margins instead (each row's cells drawn from what is left of
+ * the columns, with a seeded 32-bit Mersenne Twister) and p = (1 + hits) / (draws + 1).
  */
 export function fisherExactTest(counts: readonly (readonly number[])[], opts: ExactTestOptions): ExactTestResult {
   const alternative = opts.alternative ?? 'two-sided';
@@ -77,31 +77,76 @@ export function fisherExactTest(counts: readonly (readonly number[])[], opts: Ex
   const exact = enumerate(rows, cols, lf, logK, threshold, opts.limit);
   if (exact) return { computable: true, method: 'exact', alternative, pValue: Math.min(1, exact.p), tables: exact.tables, limit: opts.limit };
 
-  // Monte Carlo: the n observations, labelled by column, shuffled and dealt to the rows in turn
+  // Monte Carlo: each row in turn takes its margin from what is left of the columns, drawn without
+  // replacement (a multivariate hypergeometric draw, made column by column); the same distribution
+  // as shuffling the n observations and dealing them to the rows, at a cost that does not grow with n
   const rng = new SeededRandom(opts.seed);
-  const labels = new Int32Array(n);
-  let k = 0;
-  cols.forEach((m, j) => {
-    for (let q = 0; q < m; q++) labels[k++] = j;
-  });
-  const cell = new Int32Array(c);
+  const left = new Int32Array(c);
   let hits = 0;
   for (let d = 0; d < opts.draws; d++) {
-    rng.shuffle(labels);
+    left.set(cols);
     let s = 0;
-    let pos = 0;
-    for (let i = 0; i < r; i++) {
-      cell.fill(0);
-      const end = pos + rows[i]!;
-      for (; pos < end; pos++) cell[labels[pos]!]!++;
-      for (let j = 0; j < c; j++) s += lf[cell[j]!]!;
+    let total = n;
+    for (let i = 0; i < r - 1; i++) {
+      let need = rows[i]!;
+      let pool = total;
+      for (let j = 0; j < c - 1 && need > 0; j++) {
+        const k = left[j]!;
+        const x = hypergeometric(rng, lf, pool, k, need);
+        s += lf[x]!;
+        left[j] = k - x;
+        need -= x;
+        pool -= k;
+      }
+      // the rest of the row goes to the last column (and columns passed over once the row was full take 0)
+      s += lf[need]!;
+      left[c - 1]! -= need;
+      total -= rows[i]!;
     }
+    for (let j = 0; j < c; j++) s += lf[left[j]!]!;
     if (s >= threshold) hits++;
   }
   return {
     computable: true, method: 'monte-carlo', alternative, pValue: (1 + hits) / (opts.draws + 1),
     draws: opts.draws, seed: opts.seed, hits, limit: opts.limit,
   };
+}
+
+/**
+ * One draw of the number of successes in a sample of `m` from a population of `total` with `k`
+ * successes, by inversion: the probabilities are summed from the mode outwards, the larger
+ * neighbour first (any fixed order of the support gives the same distribution), so a draw costs
+ * in proportion to the spread of the distribution, not to its range.
+ */
+export function hypergeometric(rng: SeededRandom, lf: Float64Array, total: number, k: number, m: number): number {
+  const lo = Math.max(0, m - (total - k));
+  const hi = Math.min(k, m);
+  if (lo === hi) return lo;
+  const f = total - k;
+  let mode = Math.floor(((m + 1) * (k + 1)) / (total + 2));
+  if (mode < lo) mode = lo;
+  if (mode > hi) mode = hi;
+  const pm = Math.exp(lf[k]! - lf[mode]! - lf[k - mode]! + lf[f]! - lf[m - mode]! - lf[f - m + mode]! - lf[total]! + lf[m]! + lf[total - m]!);
+  let u = rng.uniform() - pm;
+  if (u < 0) return mode;
+  let a = mode;
+  let b = mode;
+  let pa = pm;
+  let pb = pm;
+  for (;;) {
+    const down = a > lo ? (pa * a * (f - m + a)) / ((k - a + 1) * (m - a + 1)) : -1;
+    const up = b < hi ? (pb * (k - b) * (m - b)) / ((b + 1) * (f - m + b + 1)) : -1;
+    if (down < 0 && up < 0) return mode; // rounding left a sliver of probability unassigned
+    if (up >= down) {
+      b++;
+      pb = up;
+      if ((u -= pb) < 0) return b;
+    } else {
+      a--;
+      pa = down;
+      if ((u -= pa) < 0) return a;
+    }
+  }
 }
 
 /**

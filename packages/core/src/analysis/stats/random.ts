@@ -19,6 +19,13 @@ export class SeededRandom {
     return x % n;
   }
 
+  /** A uniform number in [0, 1) with 53 random bits (two draws, as genrand_res53 of the reference implementation). */
+  uniform(): number {
+    const a = this.next() >>> 5;
+    const b = this.next() >>> 6;
+    return (a * 67108864 + b) / 9007199254740992;
+  }
+
   /** Shuffle an array in place (Fisher-Yates). */
   shuffle<T>(a: T[] | Int32Array): void {
     for (let i = a.length - 1; i > 0; i--) {
