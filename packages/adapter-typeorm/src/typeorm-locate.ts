@@ -251,9 +251,12 @@ export async function locateTypeorm(tree: TreeView, req: LocateRequest): Promise
         same = false;
         break;
       }
-      const text = await tree.read(p);
-      const now = text === undefined ? undefined : scanText(text, entityDecorators(req));
-      if (now) scans.set(b, now);
+      let now = scans.get(b);
+      if (!now) {
+        const text = await tree.read(p);
+        now = text === undefined ? undefined : scanText(text, entityDecorators(req));
+        if (now) scans.set(b, now);
+      }
       if (!now || !sameScan(before, now)) {
         same = false;
         break;

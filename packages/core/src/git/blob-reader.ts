@@ -132,9 +132,9 @@ export class BlobReader {
     return { kind: 'text', text, size: got.size };
   }
 
-  /** Drop a cached result once it is no longer needed (keeps memory flat on long walks). */
-  forget(id: string): void {
-    this.cache.delete(id);
+  /** Drop a cached result once it is no longer needed (keeps memory flat on long walks); whether there was one. */
+  forget(id: string): boolean {
+    return this.cache.delete(id);
   }
 
   close(): void {

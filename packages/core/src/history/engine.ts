@@ -84,6 +84,8 @@ export interface RunStats {
   blobsRead: number;
   /** Blob reads the locate step asked for ahead of the commit that needs them (`TreeView.walk.readAhead`). */
   blobsReadAhead: number;
+  /** Texts the locate step read that were not among the files it located, dropped after it. */
+  locateTextsDropped: number;
 }
 
 export interface History {
@@ -108,6 +110,17 @@ export const DEFAULT_MAX_FILE_BYTES = 5 * 1024 * 1024;
 
 /** Layout of the disk cache's records; bump it when they change. */
 const PACK_FORMAT = 3;
+
+/** Drop from the blob reader the texts read by a locate call that are not among the files it located. */
+function forgetUnlocated(reader: BlobReader, reads: readonly string[], located: readonly FileRef[]): number {
+  let keep: Set<string> | null = null;
+  let dropped = 0;
+  for (const b of reads) {
+    keep ??= new Set(located.map((f) => f.blob));
+    if (!keep.has(b) && reader.forget(b)) dropped++;
+  }
+  return dropped;
+}
 
 /** Read-ahead of blobs: when fewer than LOW versions (or commits) ahead are asked for, ask for the next BATCH. */
 const READ_AHEAD_LOW = 8;
@@ -251,6 +264,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
     // read-ahead for the locate step (see TreeView.walk): commits before `aheadTo` were scanned
     let aheadTo = 0;
     let readAheads = 0;
+    let locateTextsDropped = 0;
     const readAheadFrom = (from: number) => (wanted: (path: string) => boolean): void => {
       if (aheadTo >= from + READ_AHEAD_LOW) return;
       const end = Math.min(commits.length, from + READ_AHEAD_BATCH);
@@ -275,7 +289,8 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
         changed.push(ch.path);
         if (ch.from !== ch.path) changed.push(ch.from);
       }
-      const view = tree.view(c.commit, reader, { id: walkId, changed, readAhead: readAheadFrom(i + 1) });
+      const reads: string[] = [];
+      const view = tree.view(c.commit, reader, { id: walkId, changed, readAhead: readAheadFrom(i + 1) }, reads);
       let located: Located;
       if (userPaths.length > 0) {
         const names = lineage ? lineage[i]! : [];
@@ -311,6 +326,9 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
       // (a copy when it is the adapter's own array, which the adapter might change later)
       prevPaths = paths === located.files ? paths.slice() : paths;
       prevPathRefs = refs;
+      // texts the locate step read only to decide (configs, files it scanned and left out) are not
+      // kept for the rest of the walk: adapters keep what they derive from them per blob
+      if (reads.length > 0) locateTextsDropped += forgetUnlocated(reader, reads, files);
       if (!sameRefs(files, prevFiles)) {
         const consulted: FileRef[] = [];
         for (const p of sortedUnique(located.consulted ?? [])) {
@@ -383,7 +401,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
       tableOrigins: built.tableOrigins,
       changes: built.changes,
       diagnostics: built.runDiagnostics,
-      stats: { ...built.stats, commitsLogged: commits.length, commitsResumed: resumed?.commits.length ?? 0, candidates: candidates.length, blobsRead: reader.blobsRead, blobsReadAhead: readAheads },
+      stats: { ...built.stats, commitsLogged: commits.length, commitsResumed: resumed?.commits.length ?? 0, candidates: candidates.length, blobsRead: reader.blobsRead, blobsReadAhead: readAheads, locateTextsDropped },
     };
   } finally {
     reader.close();
