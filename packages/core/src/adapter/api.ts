@@ -180,7 +180,8 @@ export interface TreeView {
    * `readAhead`, when present, is a hint: the files that the next commits of the walk add or
    * change and that `wanted` accepts are asked of git now, so that their texts are on their way
    * while this process works (for a locate step that reads every new file of some kind; without
-   * it, each commit's read waits for git in turn). A file read ahead is kept until it is read.
+   * it, each commit's read waits for git in turn). A text read ahead is kept until its commit has
+   * been located, and after that only when that commit located its file.
    */
   readonly walk?: { readonly id: object; readonly changed: readonly string[]; readAhead?(wanted: (path: string) => boolean): void };
 }

@@ -48,8 +48,8 @@ export class TreeState {
     return this.sorted;
   }
 
-  /** A view of this tree for one commit; `reads`, when given, collects the blob ids read through it. */
-  view(commit: string, reader: BlobReader, walk?: TreeView['walk'], reads?: string[]): TreeView {
+  /** A view of this tree for one commit; `reads`, when given, collects the paths and blob ids read through it. */
+  view(commit: string, reader: BlobReader, walk?: TreeView['walk'], reads?: Array<[string, string]>): TreeView {
     const files = this.files;
     const self = this;
     return {
@@ -61,7 +61,7 @@ export class TreeState {
       async read(p) {
         const b = files.get(p);
         if (!b) return undefined;
-        reads?.push(b);
+        reads?.push([p, b]);
         const r = await reader.read(b);
         return r.kind === 'text' ? r.text : undefined;
       },

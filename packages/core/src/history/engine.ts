@@ -19,7 +19,7 @@ import type { Diagnostic, Table, ViewRef } from '../model/types.js';
 import { UsageError, EXIT } from '../util/errors.js';
 import { RecordPack } from './disk-cache.js';
 import { refChanges, SetKeys, sameRefs, unpaired } from './set-key.js';
-import { sortedUnique } from '../util/sorted.js';
+import { sortedIndex, sortedUnique } from '../util/sorted.js';
 import { checkpointFile, onFirstParentLine, readCheckpoint, writeCheckpoint, type CheckpointCandidate, type WalkCheckpoint } from './walk-checkpoint.js';
 import { pathLineage } from './path-lineage.js';
 import { hasPackedOrigins, packOrigins, SnapshotStore, unpackOrigins, type BuiltSnapshot, type PackedOrigins, type TableOrigins } from './snapshot-store.js';
@@ -84,7 +84,7 @@ export interface RunStats {
   blobsRead: number;
   /** Blob reads the locate step asked for ahead of the commit that needs them (`TreeView.walk.readAhead`). */
   blobsReadAhead: number;
-  /** Texts the locate step read that were not among the files it located, dropped after it. */
+  /** Texts the locate step read (or that were read ahead for it) that were not among the files it located, dropped after it. */
   locateTextsDropped: number;
 }
 
@@ -111,13 +111,16 @@ export const DEFAULT_MAX_FILE_BYTES = 5 * 1024 * 1024;
 /** Layout of the disk cache's records; bump it when they change. */
 const PACK_FORMAT = 3;
 
-/** Drop from the blob reader the texts read by a locate call that are not among the files it located. */
-function forgetUnlocated(reader: BlobReader, reads: readonly string[], located: readonly FileRef[]): number {
-  let keep: Set<string> | null = null;
+/**
+ * Drop from the blob reader the texts read by a locate call (path, blob) that are not among the
+ * files it located (`paths`, sorted, with their references).
+ */
+function forgetUnlocated(reader: BlobReader, reads: ReadonlyArray<readonly [string, string]>, paths: readonly string[], refs: ReadonlyArray<FileRef | undefined>): number {
   let dropped = 0;
-  for (const b of reads) {
-    keep ??= new Set(located.map((f) => f.blob));
-    if (!keep.has(b) && reader.forget(b)) dropped++;
+  for (const [p, b] of reads) {
+    const at = sortedIndex(paths, p);
+    if (paths[at] === p && refs[at]?.blob === b) continue;
+    if (reader.forget(b)) dropped++;
   }
   return dropped;
 }
@@ -265,6 +268,8 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
     let aheadTo = 0;
     let readAheads = 0;
     let locateTextsDropped = 0;
+    /** The blobs read ahead for each commit (by index), until that commit is located. */
+    const aheadFor = new Map<number, Array<[string, string]>>();
     const readAheadFrom = (from: number) => (wanted: (path: string) => boolean): void => {
       if (aheadTo >= from + READ_AHEAD_LOW) return;
       const end = Math.min(commits.length, from + READ_AHEAD_BATCH);
@@ -273,6 +278,9 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
           if (ch.status !== 'D' && ch.newMode.startsWith('100') && wanted(ch.path)) {
             readAheads++;
             void reader.read(ch.newBlob).catch(() => undefined);
+            let list = aheadFor.get(k);
+            if (!list) aheadFor.set(k, (list = []));
+            list.push([ch.path, ch.newBlob]);
           }
         }
       }
@@ -289,7 +297,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
         changed.push(ch.path);
         if (ch.from !== ch.path) changed.push(ch.from);
       }
-      const reads: string[] = [];
+      const reads: Array<[string, string]> = [];
       const view = tree.view(c.commit, reader, { id: walkId, changed, readAhead: readAheadFrom(i + 1) }, reads);
       let located: Located;
       if (userPaths.length > 0) {
@@ -326,9 +334,15 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
       // (a copy when it is the adapter's own array, which the adapter might change later)
       prevPaths = paths === located.files ? paths.slice() : paths;
       prevPathRefs = refs;
-      // texts the locate step read only to decide (configs, files it scanned and left out) are not
-      // kept for the rest of the walk: adapters keep what they derive from them per blob
-      if (reads.length > 0) locateTextsDropped += forgetUnlocated(reader, reads, files);
+      // texts the locate step read only to decide (configs, files it scanned and left out), or that
+      // were read ahead for this commit and not located, are not kept for the rest of the walk:
+      // adapters keep what they derive from them per blob
+      const ahead = aheadFor.get(i);
+      if (ahead) {
+        aheadFor.delete(i);
+        for (const b of ahead) reads.push(b);
+      }
+      if (reads.length > 0) locateTextsDropped += forgetUnlocated(reader, reads, paths, refs);
       if (!sameRefs(files, prevFiles)) {
         const consulted: FileRef[] = [];
         for (const p of sortedUnique(located.consulted ?? [])) {
