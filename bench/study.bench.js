@@ -6,8 +6,9 @@
 // then the pooled analysis, which runs once whatever --jobs is). Prints the speed-up of 2 jobs
 // over 1 (target at least 1.6 on two cores) and the time of a re-run that finds everything
 // unchanged. Beside each phase it prints its processor time (the pool children and their git
-// processes): one job alone keeps more than one core busy, which bounds what two cores can give. Two rounds, alternating, so that a slow moment of the machine does not favour one
-// side; the ratios use the best time of each side.
+// processes): one job alone keeps more than one core busy, which bounds what two cores can give.
+// Three rounds, alternating, so that a slow moment of the machine does not favour one side; the
+// ratios use the best time of each side.
 import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { spawnSync } from 'node:child_process';
 import { availableParallelism } from 'node:os';
@@ -19,7 +20,7 @@ const here = dirname(fileURLToPath(import.meta.url));
 const REPOS = Number(process.env.BENCH_STUDY_REPOS ?? 20);
 const COMMITS = Number(process.env.BENCH_STUDY_COMMITS ?? 300);
 const MODELS = Number(process.env.BENCH_STUDY_MODELS ?? 20);
-const ROUNDS = Number(process.env.BENCH_STUDY_ROUNDS ?? 2);
+const ROUNDS = Number(process.env.BENCH_STUDY_ROUNDS ?? 3);
 const cli = join(here, '..', 'packages', 'core', 'bin', 'schema-strata.js');
 const work = join(here, '..', '.bench', `study-${REPOS}-${COMMITS}-${MODELS}`);
 rmSync(work, { recursive: true, force: true });
