@@ -157,6 +157,29 @@ describe('study: one repository failing does not stop the others', () => {
     expect(projectFiles(out)).toEqual(['tools.json']);
     expect(r.stdout).not.toMatch(/\n\s+at /);
   });
+
+  it("reads each repository's own configuration file (through the run's git process), as `extract` does", async () => {
+    const root = join(tmp.dir, 'configured');
+    mkdirSync(root, { recursive: true });
+    // the schema where nothing would find it: only the configuration's paths point at it
+    const config = JSON.stringify({ adapter: 'prisma', paths: ['db/lending.prisma'], options: { 'prisma-join-key': 'unique' } });
+    await makeRepo(root, 'lending', [
+      { date: day(0), message: 'tools', files: { 'db/lending.prisma': prismaSchema(TOOL.replace('  loans Loan[]\n', '')), 'schema-strata.config.json': config } },
+      { date: day(1), message: 'members', files: { 'db/lending.prisma': prismaSchema(TOOL.replace('  loans Loan[]\n', '') + '\n' + MEMBER.replace('  loans Loan[]\n', '')) } },
+    ]);
+    await makeRepo(root, 'broken', [{ date: day(0), message: 'tools', files: { 'prisma/schema.prisma': prismaSchema(TOOL.replace('  loans Loan[]\n', '')), 'schema-strata.config.json': '{ "adapter": ' } }]);
+    const corpus = writeCorpus(join(root, 'corpus.json'), { repositories: ['lending', 'broken'] });
+    const out = join(root, 'out');
+    const r = runCli(['study', corpus, '-o', out, '--no-cache', '--quiet']);
+    expect(r.code).toBe(1);
+    expect(r.stdout).toContain('study of 2 repositories: 1 extracted, 0 unchanged since the last run, 1 failed');
+    expect(r.stdout).toMatch(/ {2}broken: schema-strata\.config\.json \(in the repository at HEAD\): not valid JSON/);
+    const f = join(root, 'lending-by-hand.json');
+    const e = runCli(['extract', 'lending', '--analyze', '--no-cache', '--quiet', '-o', f], { cwd: root });
+    expect(e.code).toBe(0);
+    expect(json(f).summary.tableIds).toBe(2);
+    expect(readFileSync(join(out, 'lending.json')).equals(readFileSync(f))).toBe(true);
+  });
 });
 
 describe('study: repositories named by clone URL', () => {

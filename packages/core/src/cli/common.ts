@@ -4,6 +4,7 @@ import { installedAdapters, loadAdapter, type LoadedAdapter } from '../adapter/l
 import { defaultCacheDir } from '../history/disk-cache.js';
 import { detectAdapter } from '../history/detect.js';
 import { openRepository } from '../git/repository.js';
+import type { BlobReader } from '../git/blob-reader.js';
 import { UsageError, EXIT } from '../util/errors.js';
 import { CONFIG_FILE, readConfigFile, readRepositoryConfig, type RunConfig } from './run-config.js';
 import { streamProgress, silentProgress, type Progress } from '../util/progress.js';
@@ -59,11 +60,12 @@ export async function applyConfig(
   repo: string,
   ref: string,
   opts: { adapter: string; path?: string[]; config?: string; [k: string]: unknown },
+  reader?: BlobReader,
 ): Promise<void> {
   const fromCli = (key: string): boolean => cmd.getOptionValueSource(key) === 'cli';
   const configs: RunConfig[] = [];
   if (opts.config) configs.push(readConfigFile(opts.config));
-  const inRepo = await readRepositoryConfig(repo, ref).catch((e) => {
+  const inRepo = await readRepositoryConfig(repo, ref, reader).catch((e) => {
     if (e instanceof UsageError) throw e;
     return undefined;
   });

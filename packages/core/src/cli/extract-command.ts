@@ -1,4 +1,5 @@
 import type { Command } from 'commander';
+import type { BlobReader } from '../git/blob-reader.js';
 import { extractHistory } from '../history/engine.js';
 import { serialiseDocument, toDocument, type InterchangeDocument } from '../interchange/document.js';
 import { writeFileAtomic } from '../util/atomic-write.js';
@@ -34,6 +35,8 @@ export interface ExtractOptions {
   strict?: boolean;
   /** The commit `ref` resolves to, when the caller has just checked the repository (not a flag). */
   resolvedHead?: string;
+  /** A blob reader the caller opened on the repository with this file-size limit, and closes (not a flag). */
+  blobReader?: BlobReader;
   [k: string]: unknown;
 }
 
@@ -49,6 +52,7 @@ export async function runExtract(repo: string, opts: ExtractOptions, io: CliIO):
       repo,
       ref: opts.ref,
       ...(opts.resolvedHead ? { resolvedHead: opts.resolvedHead } : {}),
+      ...(opts.blobReader ? { blobReader: opts.blobReader } : {}),
       since: opts.since,
       until: opts.until,
       paths: opts.path,

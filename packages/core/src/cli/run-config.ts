@@ -1,4 +1,5 @@
 import { readFileSync } from 'node:fs';
+import type { BlobReader } from '../git/blob-reader.js';
 import { runGit } from '../git/run-git.js';
 import { KNOWN_ADAPTERS } from '../adapter/loader.js';
 import { UsageError, EXIT } from '../util/errors.js';
@@ -61,16 +62,27 @@ export function readConfigFile(path: string): RunConfig {
 
 /**
  * Read the configuration file at the root of the analysed repository, at `ref`, as data (one
- * `git cat-file` process). It may name only one of the known adapters by short name: a
+ * `git cat-file` process, or through the run's blob reader when given). It may name only one of the known adapters by short name: a
  * configuration inside the analysed repository cannot make us load code.
  */
-export async function readRepositoryConfig(repo: string, ref: string): Promise<RunConfig | undefined> {
-  const r = await runGit(repo, ['cat-file', 'blob', `${ref}:${CONFIG_FILE}`]);
-  if (r.code !== 0) return undefined;
+export async function readRepositoryConfig(repo: string, ref: string, reader?: BlobReader): Promise<RunConfig | undefined> {
   const from = `${CONFIG_FILE} (in the repository at ${ref})`;
+  let text: string;
+  if (reader) {
+    // through the run's own `cat-file` process (one git process fewer)
+    const got = await reader.read(`${ref}:${CONFIG_FILE}`);
+    if (got.kind === 'missing') return undefined;
+    if (got.kind !== 'text') throw new UsageError(`${from}: not a JSON text file (${got.kind === 'binary' ? 'binary' : `${got.size} bytes, over the file-size limit`})`, EXIT.usage);
+    reader.forget(`${ref}:${CONFIG_FILE}`);
+    text = got.text;
+  } else {
+    const r = await runGit(repo, ['cat-file', 'blob', `${ref}:${CONFIG_FILE}`]);
+    if (r.code !== 0) return undefined;
+    text = r.stdout;
+  }
   let cfg: RunConfig;
   try {
-    cfg = validate(JSON.parse(r.stdout), from);
+    cfg = validate(JSON.parse(text), from);
   } catch (e) {
     if (e instanceof UsageError) throw e;
     throw new UsageError(`${from}: not valid JSON (${(e as Error).message})`, EXIT.usage);

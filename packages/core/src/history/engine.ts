@@ -69,6 +69,12 @@ export interface ExtractRequest {
   cacheDir?: string;
   /** Files larger than this many bytes are not read (a diagnostic instead). */
   maxFileBytes?: number;
+  /**
+   * A blob reader the caller opened on this repository with the same file-size limit (it read the
+   * repository's configuration file, say): the run reads through it, and the caller closes it.
+   * Saves starting a second `git cat-file`.
+   */
+  blobReader?: BlobReader;
   progress?: Progress;
 }
 
@@ -247,7 +253,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
   const window = await resolveWindow(repo.path, repo.head, commits, req.since, req.until);
 
   // ---- the locate pass
-  const reader = new BlobReader(repo.path, maxBytes);
+  const reader = req.blobReader ?? new BlobReader(repo.path, maxBytes);
   try {
     const tree = new TreeState();
     const lineage = literal.length > 0 ? pathLineage(commits, literal) : null;
@@ -418,7 +424,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
       stats: { ...built.stats, commitsLogged: commits.length, commitsResumed: resumed?.commits.length ?? 0, candidates: candidates.length, blobsRead: reader.blobsRead, blobsReadAhead: readAheads, locateTextsDropped },
     };
   } finally {
-    reader.close();
+    if (!req.blobReader) reader.close();
   }
 }
 

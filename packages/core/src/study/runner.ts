@@ -1,9 +1,11 @@
 import type { Command } from 'commander';
+import { existsSync } from 'node:fs';
 import { Writable } from 'node:stream';
 import { join } from 'node:path';
-import { applyConfig, resolveAdapter, type CliIO } from '../cli/common.js';
+import { applyConfig, parseSize, resolveAdapter, type CliIO } from '../cli/common.js';
 import { extractStep } from '../cli/analyze-command.js';
 import { extractHooks, runExtract, type ExtractOptions } from '../cli/extract-command.js';
+import { BlobReader } from '../git/blob-reader.js';
 import { openRepository } from '../git/repository.js';
 import { defaultCacheDir } from '../history/disk-cache.js';
 import { outputOptions } from '../history/engine.js';
@@ -96,7 +98,7 @@ export function optionProblem(adapter: SchemaAdapter, options: Record<string, Op
  * entry plays the part of the command line (it wins over the repository's own configuration
  * file, which is read as data).
  */
-export async function extractOptionsOf(job: RepositoryJob, location: string): Promise<ExtractOptions> {
+export async function extractOptionsOf(job: RepositoryJob, location: string, reader?: BlobReader): Promise<ExtractOptions> {
   const { entry, settings } = job;
   const opts: ExtractOptions = {
     adapter: entry.adapter,
@@ -114,7 +116,7 @@ export async function extractOptionsOf(job: RepositoryJob, location: string): Pr
   };
   for (const [flag, v] of Object.entries(entry.options)) opts[camel(flag)] = v;
   const sources = { getOptionValueSource: (key: string) => (key === 'adapter' && entry.adapterGiven ? 'cli' : undefined) } as unknown as Command;
-  await applyConfig(sources, location, entry.ref, opts);
+  await applyConfig(sources, location, entry.ref, opts, reader);
   return opts;
 }
 
@@ -131,9 +133,12 @@ export async function runRepository(job: RepositoryJob): Promise<RepositoryOutco
   let location = entry.location;
   let head: string | undefined;
   let key: string | undefined;
+  let reader: BlobReader | undefined;
   try {
     if (entry.remote) location = await ensureClone(entry.location, cloneDirOf(settings), settings.update);
-    const opts = await extractOptionsOf(job, location);
+    // one `cat-file` process for the configuration file and the extraction
+    reader = existsSync(location) ? new BlobReader(location, parseSize(settings.maxFileSize)) : undefined;
+    const opts = await extractOptionsOf(job, location, reader);
     const loaded = await resolveAdapter(opts.adapter, location, entry.ref, opts.path);
     const problem = optionProblem(loaded.adapter, entry.options);
     if (problem) return { label, status: 'failed', reason: problem };
@@ -162,7 +167,7 @@ export async function runRepository(job: RepositoryJob): Promise<RepositoryOutco
     }
     // the analysis embeds itself as in `extract --analyze` (the same step; registered once)
     if (!extractHooks.includes(extractStep)) extractHooks.push(extractStep);
-    const { doc, errors } = await runExtract(location, { ...opts, adapter: loaded.source, resolvedHead: head }, silentIO());
+    const { doc, errors } = await runExtract(location, { ...opts, adapter: loaded.source, resolvedHead: head, ...(reader ? { blobReader: reader } : {}) }, silentIO());
     // the file names the repository as the corpus wrote it, never the clone cache
     doc.source.repository = entry.repository;
     const text = serialiseDocument(doc);
@@ -176,5 +181,7 @@ export async function runRepository(job: RepositoryJob): Promise<RepositoryOutco
     const reason = message(e).split(location).join(entry.repository).split(entry.location).join(entry.repository);
     if (key && head) writeState(output, { label, key, head, status: 'failed', reason });
     return { label, status: 'failed', reason, ...(head ? { head } : {}) };
+  } finally {
+    reader?.close();
   }
 }
