@@ -5,7 +5,7 @@ import type { RawChange } from './log-pass.js';
 import { sortedIndex } from '../util/sorted.js';
 
 /** Regular files only: symbolic links (120000) and submodules (160000) are not schema files. */
-const isRegular = (mode: string): boolean => mode === '100644' || mode === '100755';
+export const isRegular = (mode: string): boolean => mode === '100644' || mode === '100755';
 
 /**
  * The watched part of the tree as it stands after each commit of the walk, kept up to date

@@ -13,7 +13,7 @@ import { diffSnapshots } from '../changes/diff-snapshots.js';
 import { BlobReader } from '../git/blob-reader.js';
 import { logPass, type LoggedCommit } from '../git/log-pass.js';
 import { firstParentLine, openRepository, resolveRevisions } from '../git/repository.js';
-import { isGlob, logSelection, matcher, selectUserPaths, TreeState } from '../git/tree-state.js';
+import { isGlob, isRegular, logSelection, matcher, selectUserPaths, TreeState } from '../git/tree-state.js';
 import { canonicalJson } from '../model/canonical.js';
 import type { Diagnostic, Table, ViewRef } from '../model/types.js';
 import { UsageError, EXIT } from '../util/errors.js';
@@ -281,7 +281,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
       const end = Math.min(commits.length, from + READ_AHEAD_BATCH);
       for (let k = Math.max(aheadTo, from); k < end; k++) {
         for (const ch of commits[k]!.changes) {
-          if (ch.status !== 'D' && ch.newMode.startsWith('100') && wanted(ch.path)) {
+          if (ch.status !== 'D' && isRegular(ch.newMode) && wanted(ch.path)) {
             readAheads++;
             void reader.read(ch.newBlob).catch(() => undefined);
             let list = aheadFor.get(k);
