@@ -2,11 +2,13 @@
 // against one git log over the whole line: the same commits in the same order with the same
 // changes, over a history with merges (whose diffs are against the first parent), deletions and
 // a rename, with and without a pathspec, with rename detection, with the filter of the log
-// selection, with progress counts, and for a range (never split).
+// selection, with progress counts, and for a range (never split). The stream of the same pass
+// (logStream, which the extraction locates as git writes it) hands over commits before git is
+// done, in both forms, and ends with the same list; a git that fails makes it reject.
 import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { logPass } from '../../packages/core/src/git/log-pass.js';
+import { logPass, logStream } from '../../packages/core/src/git/log-pass.js';
 import type { ScriptedCommit } from '@schema-strata/core';
 import { day, git, makeRepo, tempDir } from '../helpers/repo.js';
 
@@ -64,5 +66,33 @@ describe('the log pass in two parts', () => {
     // a range is logged by one process
     const from = git(repo, 'rev-parse', 'main~20').trim();
     expect(await logPass(repo, `${from}..${head}`, [], undefined, { splitAt: 10 })).toEqual(await logPass(repo, `${from}..${head}`, [], undefined, { splitAt: Infinity }));
+  }, 60_000);
+
+  it('hands the log over as git writes it', async () => {
+    // wide commits, so that git's output comes in many pieces
+    const commits: ScriptedCommit[] = [];
+    for (let i = 0; i < 240; i++) {
+      const files: ScriptedCommit['files'] = {};
+      for (let k = 0; k < 24; k++) files[`db/migrations/${String(k).padStart(2, '0')}/a-long-directory-name/${String(i).padStart(4, '0')}.js`] = `exports.n = ${i * 100 + k};\n`;
+      commits.push({ date: day(i), message: `step ${i}`, files });
+    }
+    const repo = await makeRepo(tmp.dir, 'stream', commits);
+    const whole = await logPass(repo, 'main', [], undefined, { splitAt: Infinity });
+    expect(whole).toHaveLength(240);
+    for (const splitAt of [Infinity, 100]) {
+      const stream = logStream(repo, 'main', [], undefined, { splitAt });
+      const seen: number[] = [];
+      while (await stream.more()) seen.push(stream.commits.length);
+      expect(stream.commits).toEqual(whole);
+      // more than one hand-over, each with more commits than the last, the first well before the end
+      expect(seen.length, `splitAt ${splitAt}`).toBeGreaterThan(2);
+      expect(seen[0]!).toBeLessThan(120);
+      for (let k = 1; k < seen.length; k++) expect(seen[k]!).toBeGreaterThan(seen[k - 1]!);
+      expect(seen[seen.length - 1]).toBe(240);
+    }
+    const broken = logStream(repo, 'no-such-branch', [], undefined, { splitAt: Infinity });
+    await expect((async () => {
+      while (await broken.more());
+    })()).rejects.toThrow(/git log failed/);
   }, 60_000);
 });

@@ -44,24 +44,94 @@ export async function logPass(
   onCommit?: (n: number) => void,
   opts: LogOptions = {},
 ): Promise<LoggedCommit[]> {
-  const splitAt = opts.splitAt ?? splitDefault;
-  if (ref.includes('..') || ref.startsWith('-') || !Number.isFinite(splitAt)) return logRange(repo, ref, pathspecs, onCommit, opts);
-  // a long line is logged in two parts at once, by two git processes: each commit's diff is
-  // against its first parent whichever part lists it, so the parts joined are the whole log
-  const line = await runGit(repo, ['rev-list', '--first-parent', '--end-of-options', ref, '--']);
-  const ids = line.code === 0 ? line.stdout.split('\n').filter(Boolean) : [];
-  if (ids.length < splitAt) return logRange(repo, ref, pathspecs, onCommit, opts);
-  // newest first; a commit's diff tends to cost with the size of its tree, which tends to grow, so
-  // the older part takes about 70% of the commits (equal halves of a cost that grows linearly)
-  const mid = ids[Math.floor(ids.length * 0.3)]!;
-  let older = 0;
-  let newer = 0;
-  const tick = onCommit ? () => onCommit(older + newer) : undefined;
-  const [a, b] = await Promise.all([
-    logRange(repo, mid, pathspecs, tick && ((n) => ((older = n), tick())), opts),
-    logRange(repo, `${mid}..${ref}`, pathspecs, tick && ((n) => ((newer = n), tick())), opts),
-  ]);
-  return a.concat(b);
+  const stream = logStream(repo, ref, pathspecs, onCommit, opts);
+  while (await stream.more());
+  return stream.commits as LoggedCommit[];
+}
+
+/** The log pass as it comes: its commits so far, and a wait for more. */
+export interface CommitStream {
+  /** The commits logged so far, oldest first; it grows until `more` resolves to false. */
+  readonly commits: readonly LoggedCommit[];
+  /**
+   * Resolves to true once `commits` holds commits that it did not hold at the last call, to false
+   * once the log is complete and all of them are in; rejects when git failed.
+   */
+  more(): Promise<boolean>;
+}
+
+/**
+ * The log pass of `logPass`, handed over as git writes it, so that a caller can work on the first
+ * commits while git still diffs the later ones. When the line is logged in two parts, the older
+ * part comes as it is written and the newer one once both are complete.
+ */
+export function logStream(
+  repo: string,
+  ref: string,
+  pathspecs: string[],
+  onCommit?: (n: number) => void,
+  opts: LogOptions = {},
+): CommitStream {
+  const commits: LoggedCommit[] = [];
+  let complete = false;
+  let failure: { error: unknown } | null = null;
+  let waiting: (() => void) | null = null;
+  const wake = (): void => {
+    const w = waiting;
+    waiting = null;
+    w?.();
+  };
+  const run = async (): Promise<void> => {
+    const splitAt = opts.splitAt ?? splitDefault;
+    const into = (c: LoggedCommit): void => {
+      commits.push(c);
+      onCommit?.(commits.length);
+    };
+    if (ref.includes('..') || ref.startsWith('-') || !Number.isFinite(splitAt)) return logRange(repo, ref, pathspecs, opts, into, wake);
+    // a long line is logged in two parts at once, by two git processes: each commit's diff is
+    // against its first parent whichever part lists it, so the parts joined are the whole log
+    const line = await runGit(repo, ['rev-list', '--first-parent', '--end-of-options', ref, '--']);
+    const ids = line.code === 0 ? line.stdout.split('\n').filter(Boolean) : [];
+    if (ids.length < splitAt) return logRange(repo, ref, pathspecs, opts, into, wake);
+    // newest first; a commit's diff tends to cost with the size of its tree, which tends to grow, so
+    // the older part takes about 70% of the commits (equal halves of a cost that grows linearly)
+    const mid = ids[Math.floor(ids.length * 0.3)]!;
+    const newer: LoggedCommit[] = [];
+    const tick = onCommit ? () => onCommit(commits.length + newer.length) : undefined;
+    await Promise.all([
+      logRange(repo, mid, pathspecs, opts, (c) => (commits.push(c), tick?.()), wake),
+      logRange(repo, `${mid}..${ref}`, pathspecs, opts, (c) => (newer.push(c), tick?.()), () => undefined),
+    ]);
+    for (const c of newer) commits.push(c);
+  };
+  run().then(
+    () => {
+      complete = true;
+      wake();
+    },
+    (error: unknown) => {
+      failure = { error };
+      wake();
+    },
+  );
+  let handed = 0;
+  return {
+    commits,
+    async more(): Promise<boolean> {
+      for (;;) {
+        if (failure) throw (failure as { error: unknown }).error;
+        if (commits.length > handed) {
+          handed = commits.length;
+          return true;
+        }
+        if (complete) return false;
+        await new Promise<void>((resolve) => {
+          const before = waiting;
+          waiting = before ? () => (before(), resolve()) : resolve;
+        });
+      }
+    },
+  };
 }
 
 export interface LogOptions {
@@ -87,14 +157,18 @@ export function logInParts(on: boolean): void {
   splitDefault = on ? LOG_SPLIT_MIN : Infinity;
 }
 
-/** One `git log` process over `ref` (a revision or a range), oldest first. */
+/**
+ * One `git log` process over `ref` (a revision or a range), oldest first: each commit goes to
+ * `into` as soon as it is parsed, and `chunk` is called after each piece of output.
+ */
 function logRange(
   repo: string,
   ref: string,
   pathspecs: string[],
-  onCommit: ((n: number) => void) | undefined,
   opts: LogOptions,
-): Promise<LoggedCommit[]> {
+  into: (c: LoggedCommit) => void,
+  chunk: () => void,
+): Promise<void> {
   const args = [
     '-C', repo,
     '-c', 'core.quotePath=false',
@@ -106,7 +180,6 @@ function logRange(
   ];
   return new Promise((resolve, reject) => {
     const child = spawn('git', args, { env: gitEnv(), stdio: ['ignore', 'pipe', 'pipe'] });
-    const commits: LoggedCommit[] = [];
     const keep = opts.keep;
     const parser = new RawLogParser((c) => {
       if (keep) {
@@ -115,11 +188,13 @@ function logRange(
         c.changes = c.changes.filter((ch) => keep(ch.path) || (ch.from !== ch.path && keep(ch.from)));
         if (c.changes.length === 0) return;
       }
-      commits.push(c);
-      onCommit?.(commits.length);
+      into(c);
     });
     const err: Buffer[] = [];
-    child.stdout.on('data', (b: Buffer) => parser.push(b));
+    child.stdout.on('data', (b: Buffer) => {
+      parser.push(b);
+      chunk();
+    });
     child.stderr.on('data', (b: Buffer) => err.push(b));
     child.on('error', reject);
     child.on('close', (code) => {
@@ -128,7 +203,7 @@ function logRange(
         return;
       }
       parser.end();
-      resolve(commits);
+      resolve();
     });
   });
 }
