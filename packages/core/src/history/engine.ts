@@ -11,7 +11,7 @@ import type {
 import type { Change } from '../changes/kinds.js';
 import { diffSnapshots } from '../changes/diff-snapshots.js';
 import { BlobReader } from '../git/blob-reader.js';
-import { logPass, type LoggedCommit } from '../git/log-pass.js';
+import { logStream, type LoggedCommit } from '../git/log-pass.js';
 import { firstParentLine, openRepository, resolveRevisions } from '../git/repository.js';
 import { isGlob, isRegular, logSelection, matcher, selectUserPaths, TreeState } from '../git/tree-state.js';
 import { canonicalJson } from '../model/canonical.js';
@@ -241,21 +241,28 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
   let resumed = walkFile ? await readCheckpoint(walkFile, walkKey) : undefined;
   if (resumed && !(await onFirstParentLine(repo.path, resumed.head, repo.head))) resumed = undefined;
 
-  // ---- the log pass
-  progress?.phase('reading history');
-  const logged = resumed?.head === repo.head ? [] : await logPass(repo.path, resumed ? `${resumed.head}..${repo.head}` : repo.head, selection.pathspecs, (n) => progress?.tick(n), {
+  // ---- the log pass, located as git writes it (git diffs the later commits while this process
+  // locates the schema in the earlier ones); the window's bounds are checked meanwhile
+  const stream = resumed?.head === repo.head ? null : logStream(repo.path, resumed ? `${resumed.head}..${repo.head}` : repo.head, selection.pathspecs, undefined, {
     renames: literal.length > 0,
     ...(selection.keep ? { keep: selection.keep } : {}),
   });
-  const commits = resumed ? [...resumed.commits, ...logged] : logged;
-
-  // ---- the window
-  const window = await resolveWindow(repo.path, repo.head, commits, req.since, req.until);
+  const commits: LoggedCommit[] = resumed ? [...resumed.commits] : [];
+  /** Waits for more of the log; false once all of it is in `commits`. */
+  const moreLog = async (): Promise<boolean> => {
+    if (!stream) return false;
+    const more = await stream.more();
+    for (let k = commits.length - (resumed ? resumed.commits.length : 0); k < stream.commits.length; k++) commits.push(stream.commits[k]!);
+    return more;
+  };
+  const windowOf = await resolveWindow(repo.path, repo.head, req.since, req.until);
 
   // ---- the locate pass
   const reader = req.blobReader ?? new BlobReader(repo.path, maxBytes);
   try {
     const tree = new TreeState();
+    // following literal paths back through renames needs the whole log first
+    if (literal.length > 0) while (await moreLog());
     const lineage = literal.length > 0 ? pathLineage(commits, literal) : null;
     const userMatch = matcher(globs);
     const candidates: Candidate[] = [];
@@ -268,7 +275,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
     let ambiguousHint = '';
     let unsupported: string | undefined;
     let searched: string | undefined;
-    progress?.phase('locating the schema', commits.length);
+    progress?.phase('reading history and locating the schema');
     const walkId = {};
     // read-ahead for the locate step (see TreeView.walk): commits before `aheadTo` were scanned
     let aheadTo = 0;
@@ -295,7 +302,9 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
     if (resumed) {
       ({ prevFiles, prevPaths, prevPathRefs, ambiguousHint, unsupported, searched } = restoreWalk(resumed, tree, keys, commits, candidates, ambiguous));
     }
-    for (let i = resumed ? resumed.commits.length : 0; i < commits.length; i++) {
+    for (let i = resumed ? resumed.commits.length : 0; ; i++) {
+      while (i >= commits.length && (await moreLog()));
+      if (i >= commits.length) break;
       const c = commits[i]!;
       tree.apply(c.changes);
       const changed: string[] = [];
@@ -396,6 +405,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
     }
 
     // ---- cut to the window; leading absences are not versions
+    const window = windowOf(commits);
     let inWindow = candidates.filter((c) => c.pos >= window.from && c.pos <= window.to);
     const firstPresent = inWindow.findIndex((c) => c.files.length > 0);
     inWindow = firstPresent < 0 ? [] : inWindow.slice(firstPresent);
@@ -489,17 +499,18 @@ function restoreWalk(
   };
 }
 
-/** Positions (in the log) of the first and last commit inside the --since/--until window. */
+/**
+ * The --since/--until window: its bounds are resolved and checked at once (a wrong one is a usage
+ * error before any other work), and the function returned gives the positions in the log of the
+ * first and last commit inside it.
+ */
 async function resolveWindow(
   repo: string,
   head: string,
-  commits: readonly LoggedCommit[],
   since?: string,
   until?: string,
-): Promise<{ from: number; to: number }> {
-  let from = 0;
-  let to = commits.length - 1;
-  if (!since && !until) return { from, to };
+): Promise<(commits: readonly LoggedCommit[]) => { from: number; to: number }> {
+  if (!since && !until) return (commits) => ({ from: 0, to: commits.length - 1 });
   const bounds = [since, until].filter((x): x is string => !!x);
   const revs = await resolveRevisions(repo, bounds);
   let line: Map<string, number> | null = null;
@@ -509,47 +520,43 @@ async function resolveWindow(
     if (p === undefined) throw new UsageError(`${label} is not on the first-parent line of the analysed ref`, EXIT.usage);
     return p;
   };
-  const logPos = async (): Promise<number[]> => {
-    if (!line) line = new Map((await firstParentLine(repo, head)).map((c, i) => [c, i]));
-    return commits.map((c) => line!.get(c.commit) ?? -1);
-  };
   const asDate = (v: string, flag: string): number => {
     const t = Date.parse(v);
     if (Number.isNaN(t)) throw new UsageError(`${flag} ${v}: neither a revision nor a date (use YYYY-MM-DD or a commit, tag or branch)`, EXIT.usage);
     return t;
   };
-  if (since) {
-    const id = revs.get(since);
-    if (id) {
-      const p = await posOnLine(id, `--since ${since}`);
-      const lp = await logPos();
-      from = lp.findIndex((x) => x >= p);
-      if (from < 0) from = commits.length;
-    } else {
-      const t = asDate(since, '--since');
-      from = commits.findIndex((c) => Date.parse(c.committerTime) >= t);
+  /** A bound: a position on the first-parent line, or a time. */
+  const bound = async (v: string, flag: string, wholeDay: boolean): Promise<{ pos: number } | { time: number }> => {
+    const id = revs.get(v);
+    if (id) return { pos: await posOnLine(id, `${flag} ${v}`) };
+    // a bare date as --until means the whole of that day
+    return { time: asDate(v, flag) + (wholeDay && /^\d{4}-\d{2}-\d{2}$/.test(v) ? 86_400_000 - 1 : 0) };
+  };
+  const lo = since ? await bound(since, '--since', false) : null;
+  const hi = until ? await bound(until, '--until', true) : null;
+  const onLine = line as Map<string, number> | null;
+  return (commits) => {
+    const logPos = (): number[] => commits.map((c) => onLine!.get(c.commit) ?? -1);
+    let from = 0;
+    let to = commits.length - 1;
+    if (lo) {
+      from = 'pos' in lo ? logPos().findIndex((x) => x >= lo.pos) : commits.findIndex((c) => Date.parse(c.committerTime) >= lo.time);
       if (from < 0) from = commits.length;
     }
-  }
-  if (until) {
-    const id = revs.get(until);
-    if (id) {
-      const p = await posOnLine(id, `--until ${until}`);
-      const lp = await logPos();
+    if (hi) {
       to = -1;
-      lp.forEach((x, i) => {
-        if (x >= 0 && x <= p) to = i;
-      });
-    } else {
-      // a bare date means the whole of that day
-      const t = asDate(until, '--until') + (/^\d{4}-\d{2}-\d{2}$/.test(until) ? 86_400_000 - 1 : 0);
-      to = -1;
-      commits.forEach((c, i) => {
-        if (Date.parse(c.committerTime) <= t) to = i;
-      });
+      if ('pos' in hi) {
+        logPos().forEach((x, i) => {
+          if (x >= 0 && x <= hi.pos) to = i;
+        });
+      } else {
+        commits.forEach((c, i) => {
+          if (Date.parse(c.committerTime) <= hi.time) to = i;
+        });
+      }
     }
-  }
-  return { from, to };
+    return { from, to };
+  };
 }
 
 interface BuildContext {
@@ -626,7 +633,10 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
    * A file that parsed, by its FileRef (one object while its path keeps that blob): the input
    * handed to the adapter, the same object in every version, and the file's diagnostics.
    */
-  const inputOf = new WeakMap<FileRef, { input: AssembleFile<unknown>; diagnostics: Diagnostic[] }>();
+  const inputOf = new WeakMap<FileRef, KnownInput>();
+  /** The last version's files and, at the same positions, their known inputs (see `knownAt`). */
+  let lastFiles: readonly FileRef[] = [];
+  let lastKnown: Array<KnownInput | undefined> = [];
   const versions: VersionRecord[] = [];
   const snapshots = new Map<string, BuiltSnapshot>();
   const tableOrigins = new Map<string, TableOrigins>();
@@ -706,9 +716,14 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
         }
       } else {
         const plain: FileRef[] = [];
-        for (const f of cand.files) {
+        const files = cand.files;
+        const knownNow: Array<KnownInput | undefined> = new Array(files.length);
+        const at = { j: 0 };
+        for (let k = 0; k < files.length; k++) {
+          const f = files[k]!;
           // the same file as in an earlier version: its input object is reused
-          const known = inputOf.get(f);
+          const known = knownAt(lastFiles, lastKnown, at, f) ?? inputOf.get(f);
+          knownNow[k] = known;
           if (known) {
             stats.fileCacheHits++;
             for (const d of known.diagnostics) diagnostics.push(d);
@@ -735,7 +750,8 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
           if (result && result.ok) {
             lastGood.set(f.path, { blob: f.blob, facts: result.facts });
             const input = { path: f.path, blob: f.blob, facts: result.facts };
-            inputOf.set(f, { input, diagnostics: fileDiagnostics });
+            knownNow[k] = { input, diagnostics: fileDiagnostics };
+            inputOf.set(f, knownNow[k]!);
             inputs.push(input);
             plain.push(f);
             continue;
@@ -756,6 +772,8 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
             });
           }
         }
+        lastFiles = files;
+        lastKnown = knownNow;
         // the set of inputs: plain (path, blob) pairs, plus the stale ones with the blob whose facts they use
         const extra: string[] = [];
         for (const x of inputs) if (x.stale) extra.push(`stale\u0000${x.path}\u0000${x.blob}\u0000${lastGood.get(x.path)?.blob ?? ''}`);
@@ -881,6 +899,30 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
   }
   pack?.flush();
   return { versions, snapshots, tableOrigins, changes, runDiagnostics, stats };
+}
+
+/** A file that parsed: the input handed to the adapter (the same object in every version) and the file's diagnostics. */
+interface KnownInput {
+  input: AssembleFile<unknown>;
+  diagnostics: Diagnostic[];
+}
+
+/**
+ * The known input of `f` when it stands at the walk's point of the last version's files (or one
+ * further on, past a file that changed or went): consecutive versions share most files at nearby
+ * positions, so this costs a comparison where a map lookup would cost a hash. Advances the walk.
+ */
+function knownAt(files: readonly FileRef[], known: ReadonlyArray<KnownInput | undefined>, at: { j: number }, f: FileRef): KnownInput | undefined {
+  const j = at.j;
+  if (files[j] === f) {
+    at.j = j + 1;
+    return known[j];
+  }
+  if (files[j + 1] === f) {
+    at.j = j + 2;
+    return known[j + 1];
+  }
+  return undefined;
 }
 
 function readDiagnostic(path: string, got: { kind: string; size?: number }): Diagnostic {
