@@ -132,13 +132,97 @@ export function unpackOrigins(p: PackedOrigins, i: number): TableOrigins {
   return out;
 }
 
+/** An adapter's table as interned: its id, its stored table and its origins. */
+interface InputEntry {
+  id: string;
+  st: StoredTable;
+  origins: TableOrigins;
+}
+
+/** Entries in id order, and where each entry of the input went in it. */
+interface IdOrder {
+  sorted: InputEntry[];
+  /** `rank[i]`: the place in `sorted` of the input's entry i. */
+  rank: number[];
+  /** Whether no two entries share an id (then the order is the only one, and can be built on). */
+  unique: boolean;
+}
+
+const byId = (a: InputEntry, b: InputEntry): number => (a.id < b.id ? -1 : a.id > b.id ? 1 : 0);
+
+/**
+ * The entries of an input in id order. When the last input's ids were unique, the entries found
+ * at their place in it (`from`, see `fromInput`) keep their order from there, got by their ranks
+ * there without comparing ids, and only the others (new tables, mostly) are sorted and put in
+ * place by binary search: the cost of a version that changes a few tables of many is a copy, not
+ * a sort. Otherwise (the first input, or one whose ids repeat) a stable sort, as every input had.
+ */
+function idOrder(entries: InputEntry[], from: readonly number[], last: IdOrder | null): IdOrder {
+  const n = entries.length;
+  const rank: number[] = new Array(n);
+  if (last && last.unique) {
+    // the entries found in the last input, in its order (a subsequence of an order without ties)
+    const slots: number[] = new Array(last.sorted.length).fill(-1);
+    const others: number[] = [];
+    for (let i = 0; i < n; i++) {
+      const p = from[i]!;
+      if (p >= 0) slots[last.rank[p]!] = i;
+      else others.push(i);
+    }
+    const kept: number[] = [];
+    for (const i of slots) if (i >= 0) kept.push(i);
+    others.sort((a, b) => byId(entries[a]!, entries[b]!));
+    const sorted: InputEntry[] = [];
+    let unique = true;
+    let k = 0;
+    for (let o = 0; o < others.length && unique; o++) {
+      const e = entries[others[o]!]!;
+      if (o > 0 && entries[others[o - 1]!]!.id === e.id) unique = false;
+      // the first kept entry whose id is not below this one's
+      let lo = k;
+      let hi = kept.length;
+      while (lo < hi) {
+        const mid = (lo + hi) >> 1;
+        if (entries[kept[mid]!]!.id < e.id) lo = mid + 1;
+        else hi = mid;
+      }
+      if (lo < kept.length && entries[kept[lo]!]!.id === e.id) unique = false;
+      for (; k < lo; k++) {
+        rank[kept[k]!] = sorted.length;
+        sorted.push(entries[kept[k]!]!);
+      }
+      rank[others[o]!] = sorted.length;
+      sorted.push(e);
+    }
+    if (unique) {
+      for (; k < kept.length; k++) {
+        rank[kept[k]!] = sorted.length;
+        sorted.push(entries[kept[k]!]!);
+      }
+      return { sorted, rank, unique };
+    }
+  }
+  const idx = Array.from({ length: n }, (_, i) => i);
+  // (adapters that keep their tables by id hand them over in order: checked, not sorted again)
+  let ordered = true;
+  for (let i = 1; i < n && ordered; i++) ordered = entries[i - 1]!.id < entries[i]!.id;
+  if (!ordered) idx.sort((a, b) => byId(entries[a]!, entries[b]!) || a - b);
+  const sorted = idx.map((i) => entries[i]!);
+  let unique = true;
+  for (let i = 1; i < n && unique; i++) unique = sorted[i - 1]!.id !== sorted[i]!.id;
+  idx.forEach((i, r) => (rank[i] = r));
+  return { sorted, rank, unique };
+}
+
 /** Interns tables by storage hash and builds snapshots from adapter output or from the cache. */
 export class SnapshotStore {
   private readonly tables = new Map<string, StoredTable>();
   /** Stored tables by the adapter's content key (see SnapshotInput). */
   private readonly byContentKey = new Map<string, StoredTable>();
   /** Stored tables by the adapter's input object (see `fromInput`). */
-  private readonly byInput = new WeakMap<object, { id: string; st: StoredTable; origins: TableOrigins }>();
+  private readonly byInput = new WeakMap<object, InputEntry>();
+  /** The last input's tables and their entries (in the input's order), with their id order (see `idOrder`). */
+  private lastInput: ({ tables: readonly object[]; entries: InputEntry[] } & IdOrder) | null = null;
 
   get size(): number {
     return this.tables.size;
@@ -176,10 +260,23 @@ export class SnapshotStore {
     // An adapter that hands back the same table object as in an earlier version (an incremental
     // assembly), or a table with a content key seen before, gets its stored table without
     // canonicalising and hashing it again.
-    const entries: Array<{ id: string; st: StoredTable; origins: TableOrigins }> = [];
+    const entries: InputEntry[] = [];
     const newTables: StoredTable[] = [];
-    for (const t of input.tables) {
-      let e = this.byInput.get(t);
+    const last = this.lastInput;
+    // a table at the walk's point of the last input (or one past it) is found by a comparison;
+    // `from[i]`: its position there (-1: found otherwise), so that its place in id order can be
+    // taken from the last input's
+    const from: number[] = new Array(input.tables.length);
+    let j = 0;
+    for (let i = 0; i < input.tables.length; i++) {
+      const t = input.tables[i]!;
+      let e: InputEntry | undefined;
+      if (last) {
+        if (last.tables[j] === t) e = last.entries[j++];
+        else if (last.tables[j + 1] === t) e = last.entries[(j += 2) - 1];
+      }
+      from[i] = e ? j - 1 : -1;
+      e ??= this.byInput.get(t);
       if (!e) {
         const contentKey = t.contentKey;
         const known = contentKey !== undefined ? this.byContentKey.get(contentKey) : undefined;
@@ -198,14 +295,15 @@ export class SnapshotStore {
       }
       entries.push(e);
     }
-    // (adapters that keep their tables by id hand them over in order: checked, not sorted again)
-    let ordered = true;
-    for (let i = 1; i < entries.length && ordered; i++) ordered = entries[i - 1]!.id < entries[i]!.id;
-    if (!ordered) entries.sort((a, b) => (a.id < b.id ? -1 : a.id > b.id ? 1 : 0));
+    // in id order: from the last input's order where it can be (see `idOrder`)
+    const order = idOrder(entries, from, last);
+    // (a copy: an adapter may hand over the same array again, changed)
+    this.lastInput = { tables: input.tables.slice(), entries, ...order };
+    const sorted = order.sorted;
     const views = canonicalOrder({ tables: [], ...(input.views ? { views: input.views } : {}) }).views.map(({ origin: _o, ...v }) => v);
     return {
-      snapshot: this.assembleSnapshot(entries.map((e) => e.st), views),
-      origins: entries.map((e) => e.origins),
+      snapshot: this.assembleSnapshot(sorted.map((e) => e.st), views),
+      origins: sorted.map((e) => e.origins),
       newTables,
     };
   }
