@@ -311,21 +311,23 @@ async function fromKnexfile(tree: TreeView, knexfile: string, environment: strin
  */
 interface Carried {
   knexfile: string;
-  /** The init files present, and every one the options name. */
-  init: string[];
+  /** Every init file the options name. */
   initNamed: string[];
   directories: string[];
   loadExtensions: string[];
-  /** Sorted by path. */
-  migrations: string[];
+  /** The located files (the knexfile, the init files present, the migrations), sorted; never changed in place. */
+  files: readonly string[];
 }
 const carriedByWalk = new WeakMap<object, Carried>();
 
-function sortedInsert(xs: string[], p: string): boolean {
+/** `xs` (sorted) with `p` in its place: a new array, or `xs` itself when it has `p`. */
+function withInserted(xs: readonly string[], p: string): readonly string[] {
   const at = sortedIndex(xs, p);
-  if (xs[at] === p) return false;
-  xs.splice(at, 0, p);
-  return true;
+  if (xs[at] === p) return xs;
+  if (at < xs.length) return xs.slice(0, at).concat([p], xs.slice(at));
+  const ys = xs.slice();
+  ys.push(p);
+  return ys;
 }
 
 /**
@@ -340,7 +342,7 @@ async function carryForward(tree: TreeView, last: Carried, changed: readonly str
     const parent = posix.dirname(p);
     return last.directories.includes(parent === '.' ? '' : parent);
   });
-  let migrations = last.migrations;
+  let files = last.files;
   for (const p of changed) {
     if (isKnexfile(p) || last.initNamed.includes(p)) return null;
     const parent = posix.dirname(p);
@@ -351,16 +353,9 @@ async function carryForward(tree: TreeView, last: Carried, changed: readonly str
     if (got.fromSources) return null;
     if (got.files.length === 0) continue;
     if ((await importsOf(tree, p)).length > 0) return null;
-    if (migrations === last.migrations) migrations = [...migrations];
-    sortedInsert(migrations, p);
+    files = withInserted(files, p);
   }
-  return migrations === last.migrations ? last : { ...last, migrations };
-}
-
-function carriedFiles(c: Carried): string[] {
-  const files = [...c.migrations];
-  for (const p of [c.knexfile, ...c.init]) sortedInsert(files, p);
-  return files;
+  return files === last.files ? last : { ...last, files };
 }
 
 /**
@@ -377,7 +372,8 @@ export async function locateKnex(tree: TreeView, req: LocateRequest): Promise<Lo
       const next = await carryForward(tree, last, walk.changed);
       if (next) {
         carriedByWalk.set(walk.id, next);
-        return { files: carriedFiles(next), searched: SEARCHED };
+        // (the same array while nothing was added: core does not change what it is handed)
+        return { files: next.files as string[], searched: SEARCHED };
       }
       carriedByWalk.delete(walk.id);
     }
@@ -455,8 +451,8 @@ export async function locateKnex(tree: TreeView, req: LocateRequest): Promise<Lo
   const kf = found?.knexfile;
   if (walk && kf && !kf.includes('/') && found!.settings && !found!.settings.fromSources && !closure.anyImports && diagnostics.length === 0) {
     carriedByWalk.set(walk.id, {
-      knexfile: kf, init, initNamed: initFiles(req.options), directories: found!.settings.directories,
-      loadExtensions: found!.settings.loadExtensions, migrations: sortedUnique(migrations),
+      knexfile: kf, initNamed: initFiles(req.options), directories: found!.settings.directories,
+      loadExtensions: found!.settings.loadExtensions, files: sortedUnique([kf, ...init, ...migrations]),
     });
   }
   return { files, searched: SEARCHED, ...(diagnostics.length ? { diagnostics } : {}) };

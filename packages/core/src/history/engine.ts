@@ -22,6 +22,7 @@ import { refChanges, SetKeys, sameRefs, unpaired } from './set-key.js';
 import { sortedIndex, sortedUnique } from '../util/sorted.js';
 import { checkpointFile, onFirstParentLine, readCheckpoint, writeCheckpoint, type CheckpointCandidate, type WalkCheckpoint } from './walk-checkpoint.js';
 import { pathLineage } from './path-lineage.js';
+import { locatedRefs, NO_LOCATED, type LocatedRefs } from './located-refs.js';
 import { hasPackedOrigins, packOrigins, SnapshotStore, unpackOrigins, type BuiltSnapshot, type PackedOrigins, type TableOrigins } from './snapshot-store.js';
 import type { Progress } from '../util/progress.js';
 import { VERSION } from '../version.js';
@@ -267,9 +268,8 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
     const userMatch = matcher(globs);
     const candidates: Candidate[] = [];
     let prevFiles: FileRef[] = [];
-    /** The last commit's located paths (sorted) and their references (undefined: not in its tree). */
-    let prevPaths: readonly string[] = [];
-    let prevPathRefs: ReadonlyArray<FileRef | undefined> = [];
+    /** The last commit's located paths and their references. */
+    let prevLocated: LocatedRefs = NO_LOCATED;
     const keys = new SetKeys();
     const ambiguous = new Map<string, string[]>();
     let ambiguousHint = '';
@@ -300,7 +300,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
       aheadTo = Math.max(aheadTo, end);
     };
     if (resumed) {
-      ({ prevFiles, prevPaths, prevPathRefs, ambiguousHint, unsupported, searched } = restoreWalk(resumed, tree, keys, commits, candidates, ambiguous));
+      ({ prevFiles, prevLocated, ambiguousHint, unsupported, searched } = restoreWalk(resumed, tree, keys, commits, candidates, ambiguous));
     }
     for (let i = resumed ? resumed.commits.length : 0; ; i++) {
       while (i >= commits.length && (await moreLog()));
@@ -329,26 +329,12 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
       }
       // the file references of the located paths; a path the last commit also located, and that
       // this commit did not change, keeps its reference (no lookups)
-      const files: FileRef[] = [];
-      const paths = sortedUnique(located.files);
-      const refs: Array<FileRef | undefined> = new Array(paths.length);
-      const changedSet = changed.length > 8 ? new Set(changed) : null;
-      let j = 0;
-      for (let k = 0; k < paths.length; k++) {
-        const p = paths[k]!;
-        if (prevPaths[j] !== p) while (j < prevPaths.length && prevPaths[j]! < p) j++;
-        let r: FileRef | undefined;
-        if (prevPaths[j] === p && !(changedSet ? changedSet.has(p) : changed.includes(p))) r = prevPathRefs[j];
-        else {
-          const blob = tree.get(p);
-          r = blob ? keys.ref(p, blob) : undefined;
-        }
-        refs[k] = r;
-        if (r) files.push(r);
-      }
-      // (a copy when it is the adapter's own array, which the adapter might change later)
-      prevPaths = paths === located.files ? paths.slice() : paths;
-      prevPathRefs = refs;
+      const now = locatedRefs(located.files, prevLocated, changed, (p) => {
+        const blob = tree.get(p);
+        return blob ? keys.ref(p, blob) : undefined;
+      });
+      const { paths, refs, files } = now;
+      prevLocated = now;
       // texts the locate step read only to decide (configs, files it scanned and left out), or that
       // were read ahead for this commit and not located, are not kept for the rest of the walk:
       // adapters keep what they derive from them per blob
@@ -373,7 +359,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
     if (walkFile && !(resumed?.head === repo.head)) {
       writeCheckpoint(walkFile, {
         key: walkKey, head: repo.head, commits, tree: tree.entries(), candidates: checkpointCandidates(candidates),
-        lastPaths: [...prevPaths], ambiguous: [...ambiguous.values()], ambiguousHint,
+        lastPaths: [...prevLocated.paths], ambiguous: [...ambiguous.values()], ambiguousHint,
         ...(unsupported !== undefined ? { unsupported } : {}), ...(searched !== undefined ? { searched } : {}),
       });
     }
@@ -462,7 +448,7 @@ function restoreWalk(
   commits: readonly LoggedCommit[],
   candidates: Candidate[],
   ambiguous: Map<string, string[]>,
-): { prevFiles: FileRef[]; prevPaths: string[]; prevPathRefs: Array<FileRef | undefined>; ambiguousHint: string; unsupported?: string; searched?: string } {
+): { prevFiles: FileRef[]; prevLocated: LocatedRefs; ambiguousHint: string; unsupported?: string; searched?: string } {
   tree.seed(cp.tree);
   let cur: FileRef[] = [];
   for (const c of cp.candidates) {
@@ -489,12 +475,12 @@ function restoreWalk(
     });
   }
   for (const a of cp.ambiguous) ambiguous.set(a.join(', '), a);
-  const prevPathRefs = cp.lastPaths.map((p) => {
+  const refs = cp.lastPaths.map((p) => {
     const blob = tree.get(p);
     return blob ? keys.ref(p, blob) : undefined;
   });
   return {
-    prevFiles: cur, prevPaths: cp.lastPaths, prevPathRefs, ambiguousHint: cp.ambiguousHint,
+    prevFiles: cur, prevLocated: { paths: cp.lastPaths, refs }, ambiguousHint: cp.ambiguousHint,
     ...(cp.unsupported !== undefined ? { unsupported: cp.unsupported } : {}), ...(cp.searched !== undefined ? { searched: cp.searched } : {}),
   };
 }
