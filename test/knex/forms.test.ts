@@ -100,6 +100,13 @@ const CASES: Case[] = [
       'migrations/20240103_c.mjs': "export const up = (knex) => knex.schema.renameTable('a', 'aa');\nexport const down = () => {};\n",
     },
   },
+  {
+    name: 'renameColumn: the foreign keys of other tables that point at the column follow it',
+    files: {
+      'migrations/001.js': `exports.up = async (knex) => {\n  await knex.schema.createTable('members', (t) => { t.increments('id'); t.string('email').unique(); });\n  await knex.schema.createTable('loans', (t) => { t.increments('id'); t.string('member_email').references('email').inTable('members'); });\n  await knex.schema.createTable('notes', (t) => { t.increments('id'); t.integer('member_id').references('id').inTable('members'); });\n};\nexports.down = () => {};\n`,
+      'migrations/002.js': `exports.up = (knex) => knex.schema.alterTable('members', (t) => { t.renameColumn('email', 'mail'); });\nexports.down = () => {};\n`,
+    },
+  },
 ];
 
 describe('ways of writing a Knex migration (oracle: Knex 3 on better-sqlite3)', () => {

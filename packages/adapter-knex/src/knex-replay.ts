@@ -850,10 +850,9 @@ export class Replay {
       case 'dropSchemaIfExists': {
         const ns = this.str(args[0], 'schema name', line);
         if (ns !== undefined && args[1] === true) {
-          for (const [k, t] of [...this.tables]) {
-            if (t.namespace !== ns) continue;
+          for (const k of this.tables.keysWhere((t) => t.namespace === ns)) {
+            this.moved.delete(this.tables.get(k)!.id);
             this.tables.delete(k);
-            this.moved.delete(t.id);
           }
         }
         return s;
@@ -1266,9 +1265,8 @@ export class Replay {
           t.uniques = t.uniques.map((u) => ({ ...u, columns: ren(u.columns) }));
           t.foreignKeys = t.foreignKeys.map((f) => ({ ...f, columns: ren(f.columns) }));
           // foreign keys of other tables (and of this one) that point at the column follow it
-          for (const [k, other] of [...this.tables]) {
-            if (!other.foreignKeys.some((f) => f.refTable === t.id && f.refColumns.includes(from))) continue;
-            const o = other === t ? t : this.mut(k)!;
+          for (const k of this.tables.keysWhere((other) => other.foreignKeys.some((f) => f.refTable === t.id && f.refColumns.includes(from)))) {
+            const o = this.tables.get(k) === t ? t : this.mut(k)!;
             o.foreignKeys = o.foreignKeys.map((f) => (f.refTable === t.id ? { ...f, refColumns: ren(f.refColumns) } : f));
           }
           break;

@@ -64,6 +64,16 @@ export class TrackedMap<V, M extends MapLike<V>> implements MapAccess {
     return this.cur[Symbol.iterator]();
   }
 
+  /** The keys whose values pass `test` (a read of every entry); through the map's own `keysWhere` when it has one. */
+  keysWhere(test: (value: V) => boolean): string[] {
+    this.all = true;
+    const m = this.cur as M & { keysWhere?(test: (value: V) => boolean): string[] };
+    if (m.keysWhere) return m.keysWhere(test);
+    const out: string[] = [];
+    for (const [k, v] of m) if (test(v)) out.push(k);
+    return out;
+  }
+
   /** The map after the migration (the base itself when nothing was written). */
   result(): M {
     return this.cur;
