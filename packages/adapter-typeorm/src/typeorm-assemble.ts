@@ -742,27 +742,33 @@ class Builder {
 
   private newColumn(args: ColumnArgs, ent: EntMeta, emb: EmbMeta | undefined): ColMeta {
     const o = args.options;
+    // every property set, undefined when absent: one object shape for all columns (no spread
+    // objects to build, and the code that reads columns sees one shape)
     const c: ColMeta = {
       target: args.target, propertyName: args.propertyName,
       propertyPath: emb ? `${emb.propertyPath}.${args.propertyName}` : args.propertyName,
       mode: args.mode,
-      ...(o.name ? { givenName: o.name } : {}),
-      ...(o.type !== undefined ? { type: o.type } : {}),
+      givenName: o.name ? o.name : undefined,
+      type: o.type,
       length: o.length ?? '',
-      ...(o.precision !== undefined ? { precision: o.precision } : {}),
-      ...(o.scale !== undefined ? { scale: o.scale } : {}),
+      precision: o.precision,
+      scale: o.scale,
       nullable: o.nullable ?? (o.default !== undefined && o.default.v === null ? true : false),
       primary: !!o.primary,
-      ...(o.default !== undefined ? { default: o.default } : {}),
-      ...(o.enum ? { enumValues: o.enum } : {}),
-      ...(o.enumName ? { enumName: o.enumName } : {}),
+      default: o.default,
+      enumValues: o.enum ? o.enum : undefined,
+      enumName: o.enumName ? o.enumName : undefined,
       isArray: !!o.array,
-      ...(o.asExpression ? { computed: true } : {}),
+      generated: undefined,
+      generatedType: undefined,
+      computed: o.asExpression ? true : undefined,
       prefixes: emb ? emb.prefixes : [],
       databaseName: '', databaseNameWithoutPrefixes: '',
       origin: args.origin,
-      ...(args.design ? { design: args.design } : {}),
-      ...(emb ? { embedded: emb } : {}),
+      referenced: undefined,
+      design: args.design ? args.design : undefined,
+      isDiscriminator: undefined,
+      embedded: emb,
     };
     const m = this.mapped;
     if (c.mode === 'treeLevel') c.type = m.treeLevel;

@@ -712,7 +712,8 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
           knownNow[k] = known;
           if (known) {
             stats.fileCacheHits++;
-            for (const d of known.diagnostics) diagnostics.push(d);
+            const ds = known.diagnostics;
+            for (let q = 0; q < ds.length; q++) diagnostics.push(ds[q]!);
             inputs.push(known.input);
             plain.push(f);
             continue;
@@ -762,7 +763,8 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
         lastKnown = knownNow;
         // the set of inputs: plain (path, blob) pairs, plus the stale ones with the blob whose facts they use
         const extra: string[] = [];
-        for (const x of inputs) if (x.stale) extra.push(`stale\u0000${x.path}\u0000${x.blob}\u0000${lastGood.get(x.path)?.blob ?? ''}`);
+        // (inputs marked stale are made only where `stale` is set)
+        if (stale) for (const x of inputs) if (x.stale) extra.push(`stale\u0000${x.path}\u0000${x.blob}\u0000${lastGood.get(x.path)?.blob ?? ''}`);
         for (const m of missing) extra.push(`missing\u0000${m}`);
         key = ctx.keys.key(plain, extra);
       }

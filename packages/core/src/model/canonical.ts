@@ -5,17 +5,82 @@ import { tableId } from './types.js';
 /**
  * Canonical JSON: object keys sorted, `undefined` left out, arrays kept in order.
  * The same value always gives the same string, whatever order its keys were set in.
+ * (Built by concatenation, without the intermediate arrays of map and join: it serialises every
+ * new table of every version. An `undefined` element of an array is `null`, a hole is nothing,
+ * as `map` and `join` gave.)
  */
 export function canonicalJson(value: unknown): string {
   if (value === null || typeof value !== 'object') {
     return JSON.stringify(value);
   }
   if (Array.isArray(value)) {
-    return `[${value.map((v) => (v === undefined ? 'null' : canonicalJson(v))).join(',')}]`;
+    let out = '[';
+    for (let i = 0; i < value.length; i++) {
+      if (i > 0) out += ',';
+      const v: unknown = value[i];
+      if (v !== undefined) out += canonicalJson(v);
+      else if (i in value) out += 'null';
+    }
+    return out + ']';
   }
   const obj = value as Record<string, unknown>;
-  const keys = Object.keys(obj).filter((k) => obj[k] !== undefined).sort();
-  return `{${keys.map((k) => `${JSON.stringify(k)}:${canonicalJson(obj[k])}`).join(',')}}`;
+  const keys = Object.keys(obj);
+  let n = 0;
+  for (let i = 0; i < keys.length; i++) if (obj[keys[i]!] !== undefined) keys[n++] = keys[i]!;
+  keys.length = n;
+  keys.sort();
+  let out = '{';
+  for (let i = 0; i < n; i++) {
+    const k = keys[i]!;
+    if (i > 0) out += ',';
+    out += quotedKey(k) + ':' + canonicalJson(obj[k]);
+  }
+  return out + '}';
+}
+
+/** JSON.stringify of a property name, remembered (the model has few of them). */
+const quotedKeys = new Map<string, string>();
+function quotedKey(k: string): string {
+  let q = quotedKeys.get(k);
+  if (q === undefined) {
+    q = JSON.stringify(k);
+    if (quotedKeys.size < 4096) quotedKeys.set(k, q);
+  }
+  return q;
+}
+
+/**
+ * Whether two values have the same canonical JSON, compared in place: objects by their defined
+ * properties whatever their order, arrays element by element; what is not plain (an `undefined`
+ * array element or a hole, a primitive) is decided by the canonical JSON itself.
+ */
+export function canonicalEqual(a: unknown, b: unknown): boolean {
+  if (a === b) return true;
+  if (a === null || b === null || typeof a !== 'object' || typeof b !== 'object') return canonicalJson(a) === canonicalJson(b);
+  const arr = Array.isArray(a);
+  if (arr !== Array.isArray(b)) return false;
+  if (arr) {
+    const x = a as unknown[];
+    const y = b as unknown[];
+    if (x.length !== y.length) return false;
+    for (let i = 0; i < x.length; i++) {
+      if (x[i] === undefined || y[i] === undefined) return canonicalJson(x) === canonicalJson(y);
+      if (!canonicalEqual(x[i], y[i])) return false;
+    }
+    return true;
+  }
+  const x = a as Record<string, unknown>;
+  const y = b as Record<string, unknown>;
+  let defined = 0;
+  for (const k of Object.keys(x)) {
+    const v = x[k];
+    if (v === undefined) continue;
+    defined++;
+    const w = y[k];
+    if (w === undefined || !Object.prototype.propertyIsEnumerable.call(y, k) || !canonicalEqual(v, w)) return false;
+  }
+  for (const k of Object.keys(y)) if (y[k] !== undefined) defined--;
+  return defined === 0;
 }
 
 /** A short content hash: the first 24 hex digits of SHA-256. */
@@ -185,7 +250,7 @@ export function typeShape(t: NeutralType): unknown {
 }
 
 export function sameType(a: NeutralType, b: NeutralType): boolean {
-  return canonicalJson(typeShape(a)) === canonicalJson(typeShape(b));
+  return canonicalEqual(typeShape(a), typeShape(b));
 }
 
 /** The enum values of a type (also inside an array), or undefined when it is not an enum. */
