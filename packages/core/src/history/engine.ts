@@ -771,6 +771,8 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
 
       // ---- assemble (cached by the exact input set)
       let unit = cached === null ? usableUnit(key) : cached;
+      /** The snapshot the store built just now for this unit, if it did. */
+      let built: BuiltSnapshot | null = null;
       if (unit) {
         stats.assembleCacheHits++;
       } else {
@@ -783,6 +785,7 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
           unit = { k: 's', key, failed: true, d: [...readDiagnostics, ...result.diagnostics] };
         } else {
           const made = store.fromInput(result.snapshot);
+          built = made.snapshot;
           for (const st of made.newTables) {
             if (!cachedTables.has(st.hash)) {
               cachedTables.set(st.hash, st.table);
@@ -826,7 +829,7 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
       } else {
         // a snapshot seen before in this run is taken as it is; else built from its stored tables
         // (its hashes as the cache kept them, when it did)
-        snapshot = (unit.sh !== undefined ? snapshots.get(unit.sh) : undefined) ?? null;
+        snapshot = (unit.sh !== undefined ? snapshots.get(unit.sh) : undefined) ?? built;
         if (!snapshot) {
           const tables = unit.tables!.map((h) => store.getTable(h) ?? store.internKnown(h, cachedTables.get(h)!, cachedMeanings.get(h)));
           snapshot = unit.sh !== undefined && unit.mh !== undefined
