@@ -20,6 +20,7 @@ import { UsageError, EXIT } from '../util/errors.js';
 import { RecordPack } from './disk-cache.js';
 import { refChanges, SetKeys, sameRefs, unpaired } from './set-key.js';
 import { sortedIndex, sortedUnique } from '../util/sorted.js';
+import { findNearby, type NearbyWalk } from '../util/nearby.js';
 import { checkpointFile, onFirstParentLine, readCheckpoint, writeCheckpoint, type CheckpointCandidate, type WalkCheckpoint } from './walk-checkpoint.js';
 import { pathLineage } from './path-lineage.js';
 import { locatedRefs, NO_LOCATED, type LocatedRefs } from './located-refs.js';
@@ -620,7 +621,7 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
    * handed to the adapter, the same object in every version, and the file's diagnostics.
    */
   const inputOf = new WeakMap<FileRef, KnownInput>();
-  /** The last version's files and, at the same positions, their known inputs (see `knownAt`). */
+  /** The last version's files and, at the same positions, their known inputs (see `findNearby`). */
   let lastFiles: readonly FileRef[] = [];
   let lastKnown: Array<KnownInput | undefined> = [];
   const versions: VersionRecord[] = [];
@@ -704,11 +705,12 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
         const plain: FileRef[] = [];
         const files = cand.files;
         const knownNow: Array<KnownInput | undefined> = new Array(files.length);
-        const at = { j: 0 };
+        const at: NearbyWalk = { j: 0 };
         for (let k = 0; k < files.length; k++) {
           const f = files[k]!;
           // the same file as in an earlier version: its input object is reused
-          const known = knownAt(lastFiles, lastKnown, at, f) ?? inputOf.get(f);
+          const near = findNearby(lastFiles, at, f);
+          const known = (near >= 0 ? lastKnown[near] : undefined) ?? inputOf.get(f);
           knownNow[k] = known;
           if (known) {
             stats.fileCacheHits++;
@@ -896,24 +898,6 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
 interface KnownInput {
   input: AssembleFile<unknown>;
   diagnostics: Diagnostic[];
-}
-
-/**
- * The known input of `f` when it stands at the walk's point of the last version's files (or one
- * further on, past a file that changed or went): consecutive versions share most files at nearby
- * positions, so this costs a comparison where a map lookup would cost a hash. Advances the walk.
- */
-function knownAt(files: readonly FileRef[], known: ReadonlyArray<KnownInput | undefined>, at: { j: number }, f: FileRef): KnownInput | undefined {
-  const j = at.j;
-  if (files[j] === f) {
-    at.j = j + 1;
-    return known[j];
-  }
-  if (files[j + 1] === f) {
-    at.j = j + 2;
-    return known[j + 1];
-  }
-  return undefined;
 }
 
 function readDiagnostic(path: string, got: { kind: string; size?: number }): Diagnostic {

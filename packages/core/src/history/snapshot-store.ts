@@ -1,4 +1,5 @@
 import { canonicalJson, canonicalOrder, contentHash, snapshotHashOf, tableMeaning, tableStorageKey, viewMeaning } from '../model/canonical.js';
+import { findNearby, type NearbyWalk } from '../util/nearby.js';
 import type { Column, Origin, SnapshotInput, Table, ViewRef } from '../model/types.js';
 
 /** A table as stored once per run: without origins, with its two hashes. */
@@ -267,15 +268,12 @@ export class SnapshotStore {
     // `from[i]`: its position there (-1: found otherwise), so that its place in id order can be
     // taken from the last input's
     const from: number[] = new Array(input.tables.length);
-    let j = 0;
+    const at: NearbyWalk = { j: 0 };
     for (let i = 0; i < input.tables.length; i++) {
       const t = input.tables[i]!;
-      let e: InputEntry | undefined;
-      if (last) {
-        if (last.tables[j] === t) e = last.entries[j++];
-        else if (last.tables[j + 1] === t) e = last.entries[(j += 2) - 1];
-      }
-      from[i] = e ? j - 1 : -1;
+      const near = last ? findNearby(last.tables, at, t) : -1;
+      from[i] = near;
+      let e: InputEntry | undefined = near >= 0 ? last!.entries[near] : undefined;
       e ??= this.byInput.get(t);
       if (!e) {
         const contentKey = t.contentKey;
