@@ -523,7 +523,8 @@ async function resolveWindow(
   const hi = until ? await bound(until, '--until', true) : null;
   const onLine = line as Map<string, number> | null;
   return (commits) => {
-    const logPos = (): number[] => commits.map((c) => onLine!.get(c.commit) ?? -1);
+    let positions: number[] | null = null;
+    const logPos = (): number[] => (positions ??= commits.map((c) => onLine!.get(c.commit) ?? -1));
     let from = 0;
     let to = commits.length - 1;
     if (lo) {
