@@ -1,4 +1,4 @@
-import { canonicalJson, canonicalOrder, contentHash, snapshotHashOf, tableMeaning, tableStorageKey, viewMeaning } from '../model/canonical.js';
+import { canonicalJson, canonicalOrder, contentHash, hexListJson, isHex, snapshotHashOfJson, tableMeaning, tableStorageKey, viewMeaning } from '../model/canonical.js';
 import { findNearby, type NearbyWalk } from '../util/nearby.js';
 import type { Column, Origin, SnapshotInput, Table, ViewRef } from '../model/types.js';
 
@@ -224,6 +224,8 @@ export class SnapshotStore {
   private readonly byInput = new WeakMap<object, InputEntry>();
   /** The last input's tables and their entries (in the input's order), with their id order (see `idOrder`). */
   private lastInput: ({ tables: readonly object[]; entries: InputEntry[] } & IdOrder) | null = null;
+  /** Whether every stored table's hashes are hex digits (those of `contentHash` are). */
+  private hexHashes = true;
 
   get size(): number {
     return this.tables.size;
@@ -238,6 +240,8 @@ export class SnapshotStore {
     let st = this.tables.get(hash);
     if (!st) {
       st = { hash, meaningHash: meaningHash ?? contentHash(canonicalJson(tableMeaning(table))), table };
+      // (a hash from elsewhere than `contentHash`, as a damaged cache could hold: see `assembleSnapshot`)
+      if (!isHex(st.hash) || !isHex(st.meaningHash)) this.hexHashes = false;
       this.tables.set(hash, st);
     }
     return st;
@@ -307,9 +311,17 @@ export class SnapshotStore {
   }
 
   assembleSnapshot(tables: StoredTable[], views: ViewRef[]): BuiltSnapshot {
+    const hashes: string[] = new Array(tables.length);
+    const meanings: string[] = new Array(tables.length);
+    for (let i = 0; i < tables.length; i++) {
+      hashes[i] = tables[i]!.hash;
+      meanings[i] = tables[i]!.meaningHash;
+    }
+    // the texts JSON.stringify writes for the lists, by a join while every hash is hex digits
+    const listJson = this.hexHashes ? hexListJson : JSON.stringify;
     return {
-      hash: snapshotHashOf(tables.map((t) => t.hash), views),
-      meaningHash: contentHash(`${JSON.stringify(tables.map((t) => t.meaningHash))}|${views.length ? canonicalJson(views.map(viewMeaning)) : ''}`),
+      hash: snapshotHashOfJson(listJson(hashes), views),
+      meaningHash: contentHash(`${listJson(meanings)}|${views.length ? canonicalJson(views.map(viewMeaning)) : ''}`),
       tables,
       views,
     };
