@@ -107,6 +107,13 @@ const CASES: Case[] = [
       'migrations/002.js': `exports.up = (knex) => knex.schema.alterTable('members', (t) => { t.renameColumn('email', 'mail'); });\nexports.down = () => {};\n`,
     },
   },
+  {
+    // a knex instance held by an object of a package (an ORM's handle, say), read in a helper that takes no parameter
+    name: 'a receiver read from a member of a package object',
+    files: {
+      'migrations/001.js': "const hub = require('node:process');\nexports.up = async (knex) => {\n  hub.coopKnex = knex;\n  await createShelves();\n};\nasync function createShelves() {\n  const db = hub.coopKnex;\n  await db.schema.createTable('shelves', (t) => {\n    t.increments('id');\n    t.string('aisle', 8).notNullable();\n  });\n}\nexports.down = () => {};\n",
+    },
+  },
 ];
 
 describe('ways of writing a Knex migration (oracle: Knex 3 on better-sqlite3)', () => {

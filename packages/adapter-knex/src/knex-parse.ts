@@ -1118,8 +1118,10 @@ class FileCompiler {
 }
 
 /** A value the parse could not know at all (an arbitrary expression). */
+/** A value not known statically: an expression, or a member of one (`R.knex` with `R` from a package). */
 export function isUnknown(v: Val): boolean {
-  return typeof v === 'object' && v !== null && 'expr' in v;
+  if (typeof v !== 'object' || v === null) return false;
+  return 'expr' in v || ('at' in v && typeof v.key === 'string' && isUnknown(v.at));
 }
 
 /** Concatenate values, folding adjacent literals. */
