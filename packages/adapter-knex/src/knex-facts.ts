@@ -121,6 +121,8 @@ export type Stmt =
   | { k: 'switch'; on: Val; cases: Array<{ test?: Val; body: Stmt[] }>; line: number }
   /** A call of a function the parse cannot see (from a package, or global): followed nowhere; a diagnostic when a builder is passed to it. */
   | { k: 'opaque'; callee: string; args: Arg[]; line: number }
+  /** A `for`, `while` or `do` loop: never replayed; its body is kept so that the replay can tell whether skipping it may matter. */
+  | { k: 'loop'; body: Stmt[]; line: number }
   /** Something the parse could not follow; becomes a diagnostic when replayed. */
   | { k: 'note'; code: string; message: string; line: number };
 

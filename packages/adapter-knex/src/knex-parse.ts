@@ -214,14 +214,9 @@ class FileCompiler {
       out.push({ k: 'continue', line: this.line(st) });
     } else if (t.isForStatement(st) || t.isWhileStatement(st) || t.isDoStatement(st)) {
       const inner: Stmt[] = [];
-      // such a loop is not followed; say so only when it holds builder calls
+      // such a loop is not followed; the replay says so when its body may change the schema
       this.statement(st.statement, new Scope(scope), inner);
-      if (inner.some((x) => x.k !== 'break' && x.k !== 'continue')) {
-        out.push({
-          k: 'note', code: 'knex/not-followed', line: this.line(st),
-          message: 'a for, while or do loop with builder calls is not replayed (only for...of, for...in, forEach and map over known values are)',
-        });
-      }
+      if (inner.some((x) => x.k !== 'break' && x.k !== 'continue')) out.push({ k: 'loop', body: inner, line: this.line(st) });
     } else if (t.isFunctionDeclaration(st) || t.isEmptyStatement(st) || t.isThrowStatement(st)) {
       // hoisted above / nothing to replay
     } else if (t.isLabeledStatement(st)) this.statement(st.statement, scope, out);

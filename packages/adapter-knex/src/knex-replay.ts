@@ -397,6 +397,11 @@ export class Replay {
         }
         return null;
       }
+      case 'loop':
+        if (mayChangeSchema(st.body)) {
+          this.warn('knex/not-followed', 'a for, while or do loop with builder calls is not replayed (only for...of, for...in, forEach and map over known values are)', st.line);
+        }
+        return null;
       case 'note':
         this.warn(st.code, st.message, st.line);
         return null;
@@ -1336,11 +1341,13 @@ export function mayChangeSchema(body: readonly Stmt[]): boolean {
   return body.some((st) => {
     switch (st.k) {
       case 'chain':
-        return st.chain.calls[0]?.m !== '()' && st.chain.calls.some((c) => SCHEMA_CALLS.has(c.m) || c.m === '[]');
+        // (a callback handed to any call, `transaction(cb)` say, may hold builder calls of its own)
+        return (st.chain.calls[0]?.m !== '()' && st.chain.calls.some((c) => SCHEMA_CALLS.has(c.m) || c.m === '[]')) || st.chain.calls.some(callbackMayChange);
       case 'if':
         return mayChangeSchema(st.then) || mayChangeSchema(st.else);
       case 'each':
       case 'block':
+      case 'loop':
         return mayChangeSchema(st.body);
       case 'switch':
         return st.cases.some((c) => mayChangeSchema(c.body));
@@ -1351,6 +1358,10 @@ export function mayChangeSchema(body: readonly Stmt[]): boolean {
         return false;
     }
   });
+}
+
+function callbackMayChange(c: { args?: Arg[] }): boolean {
+  return !!c.args?.some((a) => a !== null && typeof a === 'object' && 'cb' in a && mayChangeSchema(a.cb.body));
 }
 
 function action(s: string): ReferentialAction | undefined {
