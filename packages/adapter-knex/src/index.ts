@@ -7,7 +7,7 @@ export {
   locateKnex, knexfileSettings, knexfileEnvironments, migrationsIn, resolveImport, scanImports, isKnexfile,
   KNEX_WATCH, DEFAULT_LOAD_EXTENSIONS, type KnexfileSettings,
 } from './knex-locate.js';
-export { parseKnexSource, parseKnexFile } from './knex-parse.js';
+export { parseKnexSource, parseKnexFile, runtimeImportsOf } from './knex-parse.js';
 export { columnType, sqlType, dialectOf, DIALECTS, type Dialect, type ColumnTypeInfo } from './knex-types.js';
 export { ADAPTER_VERSION } from './version.js';
 export { knexAdapter as default } from './knex-adapter.js';

@@ -1,7 +1,7 @@
 import { posix } from 'node:path';
 import { BlobMemo, sortedIndex, sortedUnique, type AdapterOptionValues, type Diagnostic, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
 import type { Val } from './knex-facts.js';
-import { isArr, isObj, member, parseKnexSource } from './knex-parse.js';
+import { isArr, isObj, member, parseKnexSource, runtimeImportsOf } from './knex-parse.js';
 import { knexOptions } from './knex-config.js';
 
 const SOURCE_EXTENSIONS = ['.js', '.cjs', '.mjs', '.ts', '.cts', '.mts'];
@@ -229,7 +229,9 @@ const configMemo = new BlobMemo<Val | null>();
 const migrationMemo = new BlobMemo<boolean>();
 
 async function importsOf(tree: TreeView, path: string): Promise<string[]> {
-  return (await importMemo.of(tree, path, (text) => (text === undefined ? [] : scanImports(text)))) ?? [];
+  // the quick scan first; a file it finds relative imports in is parsed, so that imports only in
+  // comments, and those TypeScript elides (used only as types), are not followed
+  return (await importMemo.of(tree, path, (text) => (text === undefined || scanImports(text).length === 0 ? [] : runtimeImportsOf(text)))) ?? [];
 }
 
 async function knexfileConfig(tree: TreeView, path: string): Promise<Val | null> {

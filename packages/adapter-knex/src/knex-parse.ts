@@ -1076,7 +1076,10 @@ class FileCompiler {
     for (const [name, entry] of Object.entries(exports)) {
       if ('fn' in entry && name !== 'down') this.ensureFn(entry.fn);
     }
-    const facts: KnexFacts = { fns: this.fns, exports, imports: this.imports };
+    // an import whose bindings serve only as types is elided by TypeScript: it is not followed
+    const runtime = this.imports.length > 0 ? new Set(runtimeImports(this.sf)) : null;
+    const imports = runtime ? this.imports.filter((spec) => runtime.has(spec)) : this.imports;
+    const facts: KnexFacts = { fns: this.fns, exports, imports };
     const up = exports['up'];
     if (up && 'fn' in up) facts.up = up.fn;
     if (exports['down']) facts.down = true;
@@ -1177,6 +1180,65 @@ export function parseKnexSource(text: string): FileFacts<KnexFacts> {
   } catch (e) {
     return { ok: false, diagnostics: [{ severity: 'error', code: 'knex/parse-failed', message: `could not read the file: ${(e as Error).message}` }] };
   }
+}
+
+/**
+ * The relative modules a file loads when it runs, in order of appearance: imports, re-exports,
+ * `require()` and `import()` calls, but not what TypeScript elides (`import type`, and imports
+ * whose bindings serve only as types), nor what is only in comments.
+ */
+export function runtimeImports(sf: SourceFileNode): string[] {
+  const t = ts();
+  const out: string[] = [];
+  const add = (spec: string): void => {
+    if (isRelative(spec) && !out.includes(spec)) out.push(spec);
+  };
+  // imports that bind names: kept when one of the names is used outside a type
+  const pending: Array<{ spec: string; names: string[]; at: number }> = [];
+  const used = new Set<string>();
+  const visit = (n: Node, inType: boolean): void => {
+    if (t.isImportDeclaration(n)) {
+      if (!t.isStringLiteral(n.moduleSpecifier) || !isRelative(n.moduleSpecifier.text)) return;
+      const c = n.importClause;
+      if (!c) add(n.moduleSpecifier.text);
+      else if (!c.isTypeOnly) {
+        const names: string[] = c.name ? [c.name.text] : [];
+        const b = c.namedBindings;
+        if (b && t.isNamespaceImport(b)) names.push(b.name.text);
+        else if (b) for (const el of b.elements) if (!el.isTypeOnly) names.push(el.name.text);
+        if (names.length > 0) {
+          pending.push({ spec: n.moduleSpecifier.text, names, at: out.length });
+          out.push('');
+        }
+      }
+      return;
+    }
+    if (t.isExportDeclaration(n)) {
+      if (n.moduleSpecifier && t.isStringLiteral(n.moduleSpecifier) && !n.isTypeOnly) add(n.moduleSpecifier.text);
+      if (!n.moduleSpecifier && n.exportClause) n.forEachChild((c) => visit(c, inType));
+      return;
+    }
+    if (t.isCallExpression(n) && n.arguments.length === 1 && t.isStringLiteralLike(n.arguments[0]!)) {
+      const callee = n.expression;
+      if ((t.isIdentifier(callee) && callee.text === 'require') || callee.kind === t.SyntaxKind.ImportKeyword) add((n.arguments[0] as import('ts-morph').ts.StringLiteral).text);
+    }
+    if (t.isExternalModuleReference(n) && t.isStringLiteralLike(n.expression)) add(n.expression.text);
+    let typeHere = inType;
+    // (an interface's own clauses are inside its declaration, a type already)
+    if (t.isHeritageClause(n)) typeHere = inType || n.token === t.SyntaxKind.ImplementsKeyword;
+    else if (t.isInterfaceDeclaration(n) || t.isTypeAliasDeclaration(n) || (t.isTypeNode(n) && !t.isExpressionWithTypeArguments(n))) typeHere = true;
+    if (!typeHere && t.isIdentifier(n)) used.add(n.text);
+    n.forEachChild((c) => visit(c, typeHere));
+  };
+  sf.forEachChild((c) => visit(c, false));
+  for (const p of pending) out[p.at] = p.names.some((x) => used.has(x)) && !out.includes(p.spec) ? p.spec : '';
+  return out.filter((s) => s !== '');
+}
+
+/** The relative modules a source text loads when it runs (see `runtimeImports`). */
+export function runtimeImportsOf(text: string): string[] {
+  const t = ts();
+  return runtimeImports(t.createSourceFile('file.ts', text, t.ScriptTarget.Latest, false, t.ScriptKind.TS));
 }
 
 /** `parseFile` of the adapter: the facts of one file, by its text. */
