@@ -14,7 +14,7 @@ import { mkdirSync, rmSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { extractHistory, writeRepository } from '@schema-strata/core';
+import { extractHistory, tuneV8, writeRepository } from '@schema-strata/core';
 import knex, { KnexSession, knexOptions, parseKnexSource } from '@schema-strata/adapter-knex';
 import { readBlobs } from './lib/git-blobs.js';
 import { rng } from './lib/rng.js';
@@ -192,6 +192,8 @@ function timedAdapter() {
 
 /** One measurement, in this (fresh) process: prints one JSON line. */
 async function child(mode, dir, arg) {
+  // every measurement with the V8 settings the CLI runs with
+  tuneV8();
   // load the TypeScript parser first in every mode, so that no measurement pays for loading it
   ts.createSourceFile('warm.ts', 'export {}', ts.ScriptTarget.Latest);
   let out;

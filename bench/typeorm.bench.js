@@ -167,6 +167,9 @@ async function partNaive(repo) {
 // ---- the run
 
 async function child(part, repo) {
+  // every part with the V8 settings the CLI runs with
+  const { tuneV8 } = await import(join(root, 'packages/core/dist/index.js'));
+  tuneV8();
   const c0 = process.cpuUsage();
   const res = part === 'extract' ? await partExtract(repo) : part === 'floor' ? await partFloor(repo) : await partNaive(repo);
   const c = process.cpuUsage(c0);

@@ -3,12 +3,14 @@ import { spawnSync, execFileSync } from 'node:child_process';
 import { writeFileSync } from 'node:fs';
 import { join, dirname } from 'node:path';
 import { createRequire } from 'node:module';
-import { extractHistory, toDocument, serialiseDocument, GENERATOR } from '@schema-strata/core/extract';
+import { extractHistory, toDocument, serialiseDocument, tuneV8, GENERATOR } from '@schema-strata/core/extract';
 import prisma, { modernise } from '@schema-strata/adapter-prisma';
 import { readBlobs } from './git-blobs.js';
 import { cpuMark, cpuMsSince } from './cpu.js';
 
 const [mode, repo, cache] = process.argv.slice(2);
+// every mode with the V8 settings the CLI runs with
+tuneV8();
 const require = createRequire(import.meta.url);
 const wasm = require(require.resolve('@prisma/prisma-schema-wasm', { paths: [dirname(require.resolve('@schema-strata/adapter-prisma'))] }));
 const parse = (path, text) => JSON.parse(wasm.get_datamodel(JSON.stringify({ prismaSchema: [[path, modernise(text).text]] })));

@@ -25,3 +25,4 @@ export { writeFileAtomic } from './util/atomic-write.js';
 export { UsageError, EXIT } from './util/errors.js';
 export { streamProgress, silentProgress, type Progress } from './util/progress.js';
 export { VERSION, GENERATOR } from './version.js';
+export { tuneV8, V8_FLAGS } from './util/v8-tuning.js';

@@ -4,6 +4,9 @@
  */
 import { logInParts } from '../git/log-pass.js';
 import { runRepository, type RepositoryJob } from './runner.js';
+import { tuneV8 } from '../util/v8-tuning.js';
+
+tuneV8();
 
 // the pool runs repositories side by side: each one's log in one git process
 logInParts(false);
