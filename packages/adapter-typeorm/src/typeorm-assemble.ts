@@ -1027,8 +1027,18 @@ class Builder {
         }
       }
     }
-    if (referenced.length === 0) return;
-    const nullable = !(rel.args.nullable === false);
+    if (referenced.length === 0) {
+      if (this.relationsOf(inv).some((r) => r.args.primary)) {
+        this.project.report(`rk\u0000${rel.args.target}\u0000${rel.propertyPath}`, {
+          severity: 'warning', code: 'typeorm/relation-key-not-built', file: rel.args.origin.file, line: rel.args.origin.line,
+          message: `the key of ${inv.targetName} is made of its primary relations (TypeORM 0.2), whose join columns are not built before ${ent.targetName}.${rel.propertyPath} in entity order; the relation is left out`,
+        });
+      }
+      return;
+    }
+    // TypeORM 0.2's RelationMetadata: a primary relation is never nullable; its new join columns are primary
+    const primary = !!rel.args.primary;
+    const nullable = !(rel.args.nullable === false || primary);
     const columns: ColMeta[] = [];
     for (const ref of referenced) {
       const jc = joinColumns.find((j) => (!j.referencedColumnName || j.referencedColumnName === ref.propertyName) && !!j.name);
@@ -1042,7 +1052,7 @@ class Builder {
           length: this.ds.family === 'mysql' && !ref.length && (ref.generated === 'uuid' || ref.type === 'uuid') ? '36' : ref.length,
           ...(ref.precision !== undefined ? { precision: ref.precision } : {}),
           ...(ref.scale !== undefined ? { scale: ref.scale } : {}),
-          nullable, primary: false,
+          nullable, primary,
           ...(ref.enumValues ? { enumValues: ref.enumValues } : {}),
           ...(ref.enumName ? { enumName: ref.enumName } : {}),
           isArray: false,
@@ -1702,10 +1712,12 @@ class Builder {
 
   /** Whether a primary column is also the join column of one of the entity's own relations. */
   private keyedByRelation(ent: EntMeta): boolean {
+    const toOne = (rel: RelMeta): boolean => rel.relationType === 'many-to-one' || rel.relationType === 'one-to-one';
+    if (ent.relations.some((rel) => toOne(rel) && rel.args.primary)) return true;
     const pks = ent.ownColumns.filter((c) => c.primary);
     if (pks.length === 0) return false;
     for (const rel of ent.relations) {
-      if (rel.relationType !== 'many-to-one' && rel.relationType !== 'one-to-one') continue;
+      if (!toOne(rel)) continue;
       const names = this.joinColumnArgs(rel).map((j) => j.name).filter((n): n is string => !!n);
       if (rel.inverse) for (const ref of this.primaryColumns(rel.inverse)) names.push(this.ds.naming.joinColumnName(rel.propertyName, ref.propertyName));
       if (pks.some((c) => names.includes(c.databaseNameWithoutPrefixes))) return true;

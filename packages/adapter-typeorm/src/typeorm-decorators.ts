@@ -51,6 +51,8 @@ export interface RelationArgs {
   type: E;
   inverseSide?: E;
   nullable?: boolean;
+  /** TypeORM 0.2's `primary` relation option (removed in 0.3): the join columns are primary columns. */
+  primary?: boolean;
   onDelete?: string;
   onUpdate?: string;
   createForeignKeyConstraints: boolean;
@@ -515,6 +517,9 @@ export class DecoratorReader {
     if (inverseSide !== undefined) r.inverseSide = inverseSide;
     const nullable = this.b(opts, 'nullable', file, line, what);
     if (nullable !== undefined) r.nullable = nullable;
+    // TypeORM 0.3's RelationOptions has no `primary`: an object literal carrying it does not compile
+    // against 0.3 unless cast, so uncast it is code written for TypeORM 0.2 (a cast one 0.3 ignores)
+    if (!(isObjE(opts) && opts.cast) && this.b(opts, 'primary', file, line, what) === true) r.primary = true;
     Object.assign(r, this.fkActions(opts, file, line, what));
     delete (r as { name?: string }).name;
     if (this.b(opts, 'createForeignKeyConstraints', file, line, what) === false) r.createForeignKeyConstraints = false;

@@ -32,7 +32,7 @@ export type Sym =
 /** An evaluated value. */
 export type E =
   | string | number | boolean | null | undefined
-  | { $: 'obj'; p: Map<string, E>; open?: string }
+  | { $: 'obj'; p: Map<string, E>; open?: string; cast?: true }
   | { $: 'arr'; e: E[] }
   | { $: 'fn'; v: Extract<Value, { k: 'f' }>; env: Env }
   | { $: 'sym'; s: Sym }
@@ -510,7 +510,9 @@ export class Project {
             if (s.open) open = s.open;
           } else if (s !== undefined && s !== null) open = isUnk(s) ? s.t : '...';
         }
-        return open ? { $: 'obj', p, open } : { $: 'obj', p };
+        const obj: ObjE = open ? { $: 'obj', p, open } : { $: 'obj', p };
+        if (v.cast) obj.cast = true;
+        return obj;
       }
       case 'a': {
         const e: E[] = [];

@@ -27,7 +27,8 @@ export type Value =
   /** `undefined`. */
   | { k: 'u' }
   /** An object literal: entries in order; a null key is a spread. */
-  | { k: 'o'; p: Array<[string | null, Value]> }
+  /** `cast`: the literal is under a type assertion (`{ ... } as never`), so its keys were not checked against the declared type. */
+  | { k: 'o'; p: Array<[string | null, Value]>; cast?: true }
   /** An array literal (spread elements are `{k:'s'}`). */
   | { k: 'a'; e: Value[] }
   | { k: 's'; v: Value }
@@ -266,7 +267,11 @@ class Reader {
 
   value(e: TsNamespace.Expression, scope?: Scope): Value {
     const ts = this.ts;
-    while (ts.isParenthesizedExpression(e) || ts.isAsExpression(e) || ts.isSatisfiesExpression(e) || ts.isNonNullExpression(e) || ts.isTypeAssertionExpression(e)) e = e.expression;
+    let cast = false;
+    while (ts.isParenthesizedExpression(e) || ts.isAsExpression(e) || ts.isSatisfiesExpression(e) || ts.isNonNullExpression(e) || ts.isTypeAssertionExpression(e)) {
+      if (ts.isAsExpression(e) || ts.isTypeAssertionExpression(e)) cast = true;
+      e = e.expression;
+    }
     if (ts.isStringLiteral(e) || ts.isNoSubstitutionTemplateLiteral(e)) return { k: 'l', v: e.text };
     if (ts.isNumericLiteral(e)) return { k: 'l', v: Number(e.text) };
     if (ts.isPrefixUnaryExpression(e) && e.operator === ts.SyntaxKind.MinusToken && ts.isNumericLiteral(e.operand)) return { k: 'l', v: -Number(e.operand.text) };
@@ -292,7 +297,7 @@ class Reader {
           if (n !== null) p.push([n, this.functionValue(prop, scope)]);
         }
       }
-      return { k: 'o', p };
+      return cast ? { k: 'o', p, cast } : { k: 'o', p };
     }
     if (ts.isArrayLiteralExpression(e)) {
       return { k: 'a', e: e.elements.map((x) => (ts.isSpreadElement(x) ? { k: 's' as const, v: this.value(x.expression, scope) } : this.value(x, scope))) };
