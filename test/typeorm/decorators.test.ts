@@ -36,6 +36,33 @@ describe('naming rules', () => {
   });
 });
 
+describe("TypeScript's intrinsic string types", () => {
+  // Named on a property, `Lowercase<string>` and its kin are recorded as Object (TypeORM refuses
+  // it); through a type alias they are recorded as String. Checked by compiling with TypeScript and
+  // letting TypeORM read the metadata.
+  const tsconfig = JSON.stringify({ compilerOptions: { strict: true, experimentalDecorators: true, emitDecoratorMetadata: true } });
+  const head = "import { Column, Entity, PrimaryColumn } from 'typeorm';\n";
+  const aliased = {
+    'tsconfig.json': tsconfig,
+    'src/names.ts': "export type ToolCode = Uppercase<string>;\nexport type Handle = Lowercase<string>;\nexport type Label = Capitalize<string>;\nexport type Slug = Uncapitalize<'Drill'>;\nexport type MemberHandle = Handle;\n",
+    'src/tool.ts': head + "import type { Handle, Label, MemberHandle, Slug, ToolCode } from './names';\n@Entity()\nexport class Tool {\n  @PrimaryColumn()\n  code: ToolCode;\n\n  @Column()\n  keeper: Handle;\n\n  @Column()\n  label: Label;\n\n  @Column()\n  slug: Slug;\n\n  @Column()\n  owner: MemberHandle;\n}\n",
+  };
+
+  it('through a type alias are strings, as TypeORM sees them', async () => {
+    const r = await runAdapter(aliased);
+    expect(r.diagnostics).toEqual([]);
+    expect(compareWithOracle(r.snapshot!, await oracle(aliased, { strict: true }))).toEqual([]);
+    expect(r.snapshot!.tables[0]!.columns.map((c) => c.nativeType)).toEqual(['String', 'String', 'String', 'String', 'String']);
+  });
+
+  it('named on the property are Object, which TypeORM refuses', async () => {
+    const direct = { 'tsconfig.json': tsconfig, 'src/tool.ts': head + "@Entity()\nexport class Tool {\n  @PrimaryColumn()\n  code: string;\n\n  @Column()\n  keeper: Lowercase<string>;\n}\n" };
+    await expect(oracle(direct, { strict: true })).rejects.toThrow(/Data type "Object" in "Tool.keeper" is not supported/);
+    const r = await runAdapter(direct);
+    expect(r.diagnostics.map((d) => [d.code, d.line])).toEqual([['typeorm/unsupported-type', 8]]);
+  });
+});
+
 describe("types TypeScript's metadata gives, under the project's strictNullChecks", () => {
   const files = (strict: boolean): Record<string, string> => ({
     'tsconfig.json': JSON.stringify({ compilerOptions: { strict, experimentalDecorators: true, emitDecoratorMetadata: true } }),

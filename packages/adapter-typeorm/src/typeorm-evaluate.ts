@@ -66,6 +66,13 @@ const GLOBAL_DESIGN: Record<string, string> = {
   RegExp: 'RegExp', Uint8Array: 'Uint8Array', WeakMap: 'WeakMap', WeakSet: 'WeakSet', Error: 'Error',
 };
 
+/**
+ * TypeScript's intrinsic string types. Named on a property they are recorded as Object (their
+ * generic declaration is not string-like); through a type alias (`type Handle = Lowercase<string>`)
+ * the alias's type is a string mapping, recorded as String.
+ */
+const INTRINSIC_STRING = new Set(['Uppercase', 'Lowercase', 'Capitalize', 'Uncapitalize']);
+
 export const isObjE = (e: E): e is ObjE => typeof e === 'object' && e !== null && e.$ === 'obj';
 export const isArrE = (e: E): e is Extract<E, { $: 'arr' }> => typeof e === 'object' && e !== null && e.$ === 'arr';
 export const isUnk = (e: E): e is Extract<E, { $: 'unk' }> => typeof e === 'object' && e !== null && e.$ === 'unk';
@@ -684,14 +691,18 @@ export class Project {
         if (vals.every((v) => typeof v === 'number' || v === null)) return { t: { ctor: 'Number' } };
         return { t: { ctor: 'Object' } };
       }
-      case 'alias':
-        return this.designOf(s.a.design, s.file, strict, depth + 1);
+      case 'alias': {
+        const d = s.a.design;
+        if (d.k === 'r' && INTRINSIC_STRING.has(d.n) && this.symbol(s.file, d.n).k === 'unknown') return { t: { ctor: 'String' } };
+        return this.designOf(d, s.file, strict, depth + 1);
+      }
       case 'global': {
         const g = GLOBAL_DESIGN[s.name];
         return { t: { ctor: g ?? 'Object' } };
       }
       case 'unknown':
         if (GLOBAL_DESIGN[name]) return { t: { ctor: GLOBAL_DESIGN[name]! } };
+        if (INTRINSIC_STRING.has(name)) return { t: { ctor: 'Object' } };
         return { t: { ctor: 'Object' }, unresolved: name };
       default:
         return { t: { ctor: 'Object' }, unresolved: inConditional ? undefined : name };
