@@ -9,6 +9,7 @@ import { extractHistory, serialiseDocument, toDocument, GENERATOR, type ExtractR
 import knexAdapter from '@schema-strata/adapter-knex';
 import typeormAdapter from '@schema-strata/adapter-typeorm';
 import { day, git, makeRepo, tempDir } from '../helpers/repo.js';
+import { knexMigration as mig, knexStart, typeormSteps } from '../helpers/sources.js';
 
 const tmp = tempDir();
 afterAll(() => tmp.cleanup());
@@ -27,17 +28,9 @@ function withoutReadAhead(adapter: SchemaAdapter): SchemaAdapter {
 
 const doc = async (req: ExtractRequest): Promise<string> => serialiseDocument(toDocument(await extractHistory(req), GENERATOR));
 
-const mig = (table: string, extra = '') =>
-  `exports.up = async (knex) => { await knex.schema.createTable('${table}', (t) => { t.increments('id'); t.string('label', 40);${extra} }); };\nexports.down = async () => {};\n`;
-
-const entity = (cls: string, extra = '') =>
-  `import { Entity, PrimaryGeneratedColumn, Column } from 'typeorm';\n\n@Entity()\nexport class ${cls} {\n  @PrimaryGeneratedColumn()\n  id!: number;\n\n  @Column()\n  label!: string;\n${extra}}\n`;
-
 describe('reading ahead during the walk', () => {
   it('gives the bytes of a walk without it (Knex: appended, edited, deleted and renamed migrations)', async () => {
-    const files: ScriptedCommit['files'][] = [
-      { 'package.json': '{ "dependencies": { "knex": "^3.1.0" } }\n', 'knexfile.js': "module.exports = { client: 'pg', migrations: { directory: './db/migrations' } };\n", 'db/migrations/000_tools.js': mig('tools') },
-    ];
+    const files: ScriptedCommit['files'][] = [knexStart()];
     for (let i = 1; i <= 150; i++) {
       const step: ScriptedCommit['files'] = { [`db/migrations/${String(i).padStart(3, '0')}_t${i}.js`]: mig(`t${i}`) };
       if (i % 17 === 0) step['db/migrations/000_tools.js'] = mig('tools', ` t.integer('n${i}');`);
@@ -57,18 +50,7 @@ describe('reading ahead during the walk', () => {
   }, 120_000);
 
   it('gives the bytes of a walk without it (TypeORM: entity files edited, added and removed, other sources changed)', async () => {
-    const files: ScriptedCommit['files'][] = [
-      { 'package.json': '{ "dependencies": { "typeorm": "^0.3.20" } }\n', 'src/entity/Tool.ts': entity('Tool'), 'src/entity/Member.ts': entity('Member') },
-    ];
-    for (let i = 1; i <= 80; i++) {
-      const step: ScriptedCommit['files'] = {};
-      if (i % 3 === 0) step['src/entity/Tool.ts'] = entity('Tool', `\n  @Column({ nullable: true })\n  note${i}?: string;\n`);
-      else if (i % 3 === 1) step['src/service.ts'] = `export const version = ${i};\n`;
-      else step['src/entity/Member.ts'] = entity('Member', `\n  @Column()\n  n${i}!: number;\n`);
-      if (i === 40) step['src/entity/Loan.ts'] = entity('Loan');
-      if (i === 70) step['src/entity/Loan.ts'] = null;
-      files.push(step);
-    }
+    const files = typeormSteps();
     const commits: ScriptedCommit[] = files.map((f, i) => ({ date: day(i), message: `step ${i}`, files: f }));
     const repo = await makeRepo(tmp.dir, 'typeorm', commits);
     const h = await extractHistory({ repo, adapter: typeormAdapter });

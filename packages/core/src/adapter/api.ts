@@ -49,7 +49,9 @@ export interface SchemaAdapter<Facts = unknown> {
   /**
    * Optional per-file step: the facts of one file, cached by its blob id (in memory and on
    * disk). When absent, `assemble` receives the text of every file instead.
-   * Facts must be plain JSON data.
+   * Facts must be plain JSON data, and depend on the file's text (and the options) alone: core
+   * calls this for the files of the versions ahead as soon as git hands them over, in no fixed
+   * order relative to `assemble` (`ExtractRequest.parseAhead`).
    */
   parseFile?(file: SourceFile, options: AdapterOptionValues): FileFacts<Facts> | Promise<FileFacts<Facts>>;
   /**

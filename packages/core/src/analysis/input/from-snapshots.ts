@@ -84,7 +84,7 @@ export function documentFromSnapshots(versions: readonly SnapshotVersion[], sour
     tableOrigins,
     changes,
     diagnostics: [],
-    stats: { commitsLogged: 0, commitsResumed: 0, candidates: 0, assembled: 0, assembleCacheHits: 0, filesParsed: 0, fileCacheHits: 0, blobsRead: 0, blobsReadAhead: 0, locateTextsDropped: 0 },
+    stats: { commitsLogged: 0, commitsResumed: 0, candidates: 0, assembled: 0, assembleCacheHits: 0, filesParsed: 0, fileCacheHits: 0, blobsRead: 0, blobsReadAhead: 0, locateTextsDropped: 0, filesParsedAhead: 0 },
   };
   return toDocument(history, GENERATOR);
 }
