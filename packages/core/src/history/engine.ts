@@ -941,8 +941,8 @@ class FileInputs {
   /**
    * Ask git for a file that a version ahead will need, and parse it as soon as its text comes,
    * while the build works on the versions before (facts depend on the text alone). Parsing
-   * there, in batches as git answers, rather than file by file when the build reaches the
-   * version: the Knex extract 15–20% faster, TypeORM's about 10% (DEVELOPERS.md, Performance).
+   * there, in runs as git answers, rather than file by file between the build's other steps
+   * made the benchmarks' extracts faster (DEVELOPERS.md, Performance).
    * A file that cannot be read, or whose parse throws, is left to `facts`, which reads and
    * parses it again in its turn and reports it as before.
    */
