@@ -5,7 +5,7 @@ import { tmpdir } from 'node:os';
 import { join, dirname } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { execFileSync } from 'node:child_process';
-import { writeRepository, type ScriptedCommit, type SnapshotInput, type Table } from '@schema-strata/core';
+import { writeRepository, type Diagnostic, type ScriptedCommit, type SnapshotInput, type Table } from '@schema-strata/core';
 import knexAdapter, { KnexSession, knexOptions, parseKnexSource, type KnexFacts } from '@schema-strata/adapter-knex';
 
 export const FIXTURES = join(dirname(fileURLToPath(import.meta.url)), '..', 'fixtures', 'knex');
@@ -63,6 +63,14 @@ export async function replaySteps(
   tree: Map<string, string>,
   options: Record<string, string | string[]>,
 ): Promise<Array<{ path: string; role: string; skipped: boolean; snapshot: SnapshotInput }>> {
+  return (await replayTree(tree, options)).steps;
+}
+
+/** `replaySteps`, with the version's diagnostics. */
+export async function replayTree(
+  tree: Map<string, string>,
+  options: Record<string, string | string[]>,
+): Promise<{ steps: Array<{ path: string; role: string; skipped: boolean; snapshot: SnapshotInput }>; diagnostics: Diagnostic[] }> {
   const blobs = new Map<string, string>();
   const view = {
     commit: 'tree',
@@ -86,8 +94,8 @@ export async function replaySteps(
     return { path, blob: view.blob(path)!, ...(r.ok ? { facts: r.facts as KnexFacts } : {}) };
   });
   const session = new KnexSession(knexOptions(options));
-  session.assemble({ files: files.filter((f) => f.facts), missing: files.filter((f) => !f.facts).map((f) => f.path) });
-  return session.trace();
+  const r = session.assemble({ files: files.filter((f) => f.facts), missing: files.filter((f) => !f.facts).map((f) => f.path) });
+  return { steps: session.trace(), diagnostics: 'diagnostics' in r ? r.diagnostics : [] };
 }
 
 /** Tables of a snapshot input with ids filled in (as core would). */

@@ -144,6 +144,12 @@ export interface RunOptions {
   init?: string[];
   /** Introspect after every migration (else only at the end). */
   each?: boolean;
+  /**
+   * PGlite: the client name `knex.client.config.client` holds, as for a project configured with
+   * that string (Knex's Client constructor keeps the configuration, `this.config = { ...config }`,
+   * lib/client.js); the run itself passes Knex a client class, which would be there instead.
+   */
+  clientName?: string;
 }
 
 /**
@@ -187,6 +193,7 @@ export class KnexProject {
       opts.engine === 'sqlite'
         ? Knex({ client: 'better-sqlite3', connection: { filename: join(src, '..', 'oracle.sqlite3') }, useNullAsDefault: true, migrations })
         : Knex({ client: ClientPGlite as never, connection: { pglite: opts.pglite } as never, pool: { min: 1, max: 1 }, migrations });
+    if (opts.clientName !== undefined) (knex.client as { config: { client: unknown } }).config.client = opts.clientName;
     const project = new KnexProject(src, out, knex, opts);
     try {
       for (const file of opts.init ?? []) {

@@ -8,6 +8,6 @@ export {
   KNEX_WATCH, DEFAULT_LOAD_EXTENSIONS, type KnexfileSettings,
 } from './knex-locate.js';
 export { parseKnexSource, parseKnexFile, runtimeImportsOf } from './knex-parse.js';
-export { columnType, sqlType, dialectOf, DIALECTS, type Dialect, type ColumnTypeInfo } from './knex-types.js';
+export { columnType, sqlType, dialectOf, DIALECTS, knexClient, KNEX_CLIENT_NAMES, type Dialect, type ColumnTypeInfo, type KnexClientInfo } from './knex-types.js';
 export { ADAPTER_VERSION } from './version.js';
 export { knexAdapter as default } from './knex-adapter.js';

@@ -13,7 +13,7 @@ import { isKnexfile, knexfileSettings, migrationIndices, resolveImport } from '.
 import { PMap } from './knex-pmap.js';
 import { EMPTY_STATE, Replay, type FileContext, type ReplayCounters, type SchemaState, type StateAccess, type TableState, type ViewState } from './knex-replay.js';
 import { untouchedBy, type MapLike } from './knex-track.js';
-import { dialectOf, type Dialect } from './knex-types.js';
+import { dialectOf, knexClient, type Dialect, type KnexClientInfo } from './knex-types.js';
 
 /** One migration (or init file) of a version, in replay order. */
 export interface PlanEntry {
@@ -28,6 +28,8 @@ export interface PlanEntry {
 /** What a version's replay needs: its entries in order, the dialect, and every file by path. */
 export interface VersionPlan {
   dialect: Dialect;
+  /** What `knex.client` holds for the run's client (--knex-client, else the knexfile's), when known. */
+  client?: KnexClientInfo;
   entries: PlanEntry[];
   files: FileLookup;
   diagnostics: Diagnostic[];
@@ -210,6 +212,7 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
     if (d) dialect = d;
     else diagnostics.push({ severity: 'info', code: 'knex/client-unknown', file: knexfile!.path, message: `client ${settings.client} is not one schema-strata maps; types follow PostgreSQL (set --knex-client)` });
   }
+  const client = options.clientName !== undefined ? knexClient(options.clientName) : knexClient(settings?.client, settings?.clientKey);
 
   // the migrations and the directory each comes from
   // `at`: the file's position in the input (-1: a missing file; undefined: look it up by path)
@@ -296,7 +299,7 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
     return { path, role, ...(file ? { file } : {}), key: `${role}|${path}|${own}|${file ? depKey(path) : ''}` };
   };
   const entries = [...init.map((p) => entry(p, 'init')), ...found.map((f) => entry(f.path, 'migration', f.at))];
-  const plan: VersionPlan = { dialect, entries, files, diagnostics };
+  const plan: VersionPlan = { dialect, ...(client ? { client } : {}), entries, files, diagnostics };
   if (settings && !several && !fromSources && input.missing.length === 0 && input.files.every((f) => f.facts && !f.stale && f.facts.imports.length === 0)) {
     plan.appendable = { dir: settings.directories[0]!, loadExtensions: settings.loadExtensions, lastName: found.length > 0 ? found[found.length - 1]!.name : null };
   }
@@ -347,6 +350,7 @@ export function appendedPlan(last: VersionPlan, lastFiles: AssembleInput<KnexFac
   }
   return {
     dialect: last.dialect,
+    ...(last.client ? { client: last.client } : {}),
     entries: [...last.entries, ...entries],
     files: new FileLookup(files, NO_PATHS),
     diagnostics: last.diagnostics,
@@ -481,6 +485,8 @@ function toView(v: ViewState): NonNullable<SnapshotInput['views']>[number] {
 export class KnexSession implements AdapterSession<KnexFacts> {
   private steps: Step[] = [];
   private dialect: Dialect | null = null;
+  /** The client the steps were replayed for (`clientKey`). */
+  private client: string | null = null;
   /** Migrations replayed by this session (for tests and benchmarks). */
   replayed = 0;
   /** Migrations of a refold taken over from the previous fold without replaying them. */
@@ -505,9 +511,11 @@ export class KnexSession implements AdapterSession<KnexFacts> {
 
   assemble(input: AssembleInput<KnexFacts>): AssembleResult {
     const plan = this.plan(input);
-    if (plan.dialect !== this.dialect) {
+    const client = clientKey(plan.client);
+    if (plan.dialect !== this.dialect || client !== this.client) {
       this.steps = [];
       this.dialect = plan.dialect;
+      this.client = client;
     }
     const steps = this.steps;
     let i = 0;
@@ -553,7 +561,7 @@ export class KnexSession implements AdapterSession<KnexFacts> {
           continue;
         }
       }
-      const replay = new Replay(state, plan.dialect, plan.files);
+      const replay = new Replay(state, plan.dialect, plan.files, plan.client);
       if (e.file) {
         replay.runFile(e.file, e.role);
         this.replayed++;
@@ -621,6 +629,11 @@ export class KnexSession implements AdapterSession<KnexFacts> {
     const views = [...state.views.values()].map(toView);
     return { snapshot: { tables, views }, diagnostics, counters: { ...last.counters } };
   }
+}
+
+/** A key of what `knex.client` holds: the replay of a condition on it depends on nothing else. */
+function clientKey(c: KnexClientInfo | undefined): string {
+  return c ? `${c.dialect}|${c.driverName}|${c.configClient ?? ''}` : '';
 }
 
 /** Assemble one version without a session (a fresh fold from the first migration). */

@@ -1,5 +1,8 @@
 import type { AdapterOption, AdapterOptionValues } from '@schema-strata/core/extract';
-import { DIALECTS, type Dialect } from './knex-types.js';
+import { dialectOf, DIALECTS, KNEX_CLIENT_NAMES, type Dialect } from './knex-types.js';
+
+/** Values of --knex-client besides auto: the type families, then the other client names Knex accepts. */
+const CLIENT_CHOICES = [...DIALECTS, ...KNEX_CLIENT_NAMES.filter((c) => !(DIALECTS as readonly string[]).includes(c))];
 
 /** Options of the Knex adapter (shown by `schema-strata extract --help`; also settable in schema-strata.config.json `options`). */
 export const KNEX_OPTIONS: readonly AdapterOption[] = Object.freeze([
@@ -24,9 +27,9 @@ export const KNEX_OPTIONS: readonly AdapterOption[] = Object.freeze([
   },
   {
     flag: 'knex-client',
-    description: `database the column types follow (${DIALECTS.join(', ')}); default: the knexfile's client, else postgresql`,
+    description: `database client the run is for, as a knexfile's client names it (${CLIENT_CHOICES.join(', ')}): the column types follow its family, and conditions on knex.client (dialect, driverName, config.client) are decided by it; default: the knexfile's client (types follow postgresql when there is none, and such conditions take their first branch)`,
     type: 'string',
-    choices: ['auto', ...DIALECTS],
+    choices: ['auto', ...CLIENT_CHOICES],
     default: 'auto',
   },
 ]);
@@ -35,7 +38,10 @@ export interface KnexOptions {
   init: string[];
   order: 'name' | 'natural';
   environment?: string;
+  /** The family the column types follow (from --knex-client). */
   client?: Dialect;
+  /** The client name --knex-client gives, as a knexfile would (decides conditions on `knex.client`). */
+  clientName?: string;
 }
 
 /** The adapter's options from the values core passes (CLI flags or the configuration file). */
@@ -48,6 +54,6 @@ export function knexOptions(values: AdapterOptionValues): KnexOptions {
     init: Array.isArray(init) ? init : typeof init === 'string' && init ? [init] : [],
     order: order === 'natural' ? 'natural' : 'name',
     ...(typeof env === 'string' && env ? { environment: env } : {}),
-    ...(typeof client === 'string' && (DIALECTS as readonly string[]).includes(client) ? { client: client as Dialect } : {}),
+    ...(typeof client === 'string' && CLIENT_CHOICES.includes(client) ? { client: dialectOf(client)!, clientName: client } : {}),
   };
 }

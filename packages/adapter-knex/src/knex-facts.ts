@@ -91,6 +91,8 @@ export type Cond =
   | { or: [Cond, Cond] }
   | { lit: boolean }
   | { eq: [Val, Val]; neg?: boolean }
+  /** `list.includes(item)` (an array, or a string and a substring). */
+  | { includes: [Val, Val] }
   | { truthy: Val }
   | { unknown: string; line: number };
 

@@ -36,6 +36,8 @@ export interface KnexfileSettings {
   /** The environment read, when the knexfile has several. */
   environment?: string;
   client?: string;
+  /** Whether the configuration names the client as `client` (Knex's `client.config.client`) or as `dialect`. */
+  clientKey?: 'client' | 'dialect';
   directories: string[];
   loadExtensions: string[];
   sortDirsSeparately: boolean;
@@ -133,7 +135,10 @@ export function knexfileSettings(config: Val | undefined, knexfilePath: string, 
   const plain = chosen === undefined ? undefined : evalConfig(chosen, dir);
   const obj = plain && typeof plain === 'object' && !Array.isArray(plain) ? plain : {};
   const client = obj['client'] ?? obj['dialect'];
-  if (typeof client === 'string') settings.client = client;
+  if (typeof client === 'string') {
+    settings.client = client;
+    settings.clientKey = obj['client'] === client ? 'client' : 'dialect';
+  }
   else if (client === UNKNOWN) notes.push('the client is not known statically');
   const mig = obj['migrations'];
   const m = mig && typeof mig === 'object' && !Array.isArray(mig) ? mig : {};

@@ -88,7 +88,10 @@ class FileCompiler {
   private readonly t: TsModule;
 
   constructor(private readonly sf: SourceFileNode) {
-    this.t = ts();
+    const t = (this.t = ts());
+    if (EQUALITY.size === 0) {
+      for (const k of [t.SyntaxKind.EqualsEqualsEqualsToken, t.SyntaxKind.EqualsEqualsToken, t.SyntaxKind.ExclamationEqualsEqualsToken, t.SyntaxKind.ExclamationEqualsToken]) EQUALITY.add(k);
+    }
   }
 
   line(n: Node): number {
@@ -685,6 +688,7 @@ class FileCompiler {
     if (t.isIdentifier(e)) {
       const b = scope.get(e.text);
       if (b?.kind === 'cond') return b.cond;
+      if (b?.kind === 'val' && isBoolWhen(b.val)) return b.val.when;
       if (b?.kind === 'val') return isLiteral(b.val) ? { lit: !!b.val } : { truthy: b.val };
       if (b?.kind === 'local') return { truthy: { local: e.text } };
     }
@@ -694,11 +698,46 @@ class FileCompiler {
         const chain = this.chainOf(e, scope);
         if (chain) return { chain };
       }
+      const inc = this.includesCond(e, scope);
+      if (inc) return inc;
     }
     const v = this.val(e, scope);
     if (isLiteral(v)) return { lit: !!v };
+    if (isBoolWhen(v)) return v.when;
     if (typeof v === 'object' && v !== null && !('expr' in v)) return { truthy: v };
     return { unknown: this.text(e), line: this.line(e) };
+  }
+
+  /** `list.includes(item)`: decided here when both are literals, else at replay; null for another call. */
+  private includesCond(e: import('ts-morph').ts.CallExpression, scope: Scope): Cond | null {
+    const t = this.t;
+    const callee = this.unwrap(e.expression);
+    if (!t.isPropertyAccessExpression(callee) || callee.name.text !== 'includes' || e.arguments.length !== 1) return null;
+    const list = this.val(callee.expression, scope);
+    const item = this.val(e.arguments[0]!, scope);
+    if (typeof list === 'string' && typeof item === 'string') return { lit: list.includes(item) };
+    if (isArr(list) && list.arr.every(isLiteral) && isLiteral(item)) return { lit: (list.arr as Val[]).includes(item) };
+    if (isObj(list) || (isLiteral(list) && typeof list !== 'string')) return null;
+    return { includes: [list, item] };
+  }
+
+  /** Is an expression a condition by its form (a comparison, a negation, `includes`, `&&` / `||` of such), so that its value is a boolean? */
+  private isBoolish(e0: Expression, scope: Scope): boolean {
+    const t = this.t;
+    const e = this.unwrap(e0);
+    if (e.kind === t.SyntaxKind.TrueKeyword || e.kind === t.SyntaxKind.FalseKeyword) return true;
+    if (t.isPrefixUnaryExpression(e)) return e.operator === t.SyntaxKind.ExclamationToken;
+    if (t.isBinaryExpression(e)) {
+      const op = e.operatorToken.kind;
+      if (op === t.SyntaxKind.AmpersandAmpersandToken || op === t.SyntaxKind.BarBarToken) return this.isBoolish(e.left, scope) && this.isBoolish(e.right, scope);
+      return EQUALITY.has(op);
+    }
+    if (t.isCallExpression(e)) return this.outerMethod(e) === 'includes' && e.arguments.length === 1;
+    if (t.isIdentifier(e)) {
+      const b = scope.get(e.text);
+      return b?.kind === 'cond' || (b?.kind === 'val' && (typeof b.val === 'boolean' || isBoolWhen(b.val)));
+    }
+    return false;
   }
 
   // ---------------------------------------------------------------- values
@@ -724,6 +763,7 @@ class FileCompiler {
     if (t.isStringLiteral(e) || t.isNoSubstitutionTemplateLiteral(e)) return e.text;
     if (t.isNumericLiteral(e)) return Number(e.text);
     if (t.isPrefixUnaryExpression(e) && e.operator === t.SyntaxKind.MinusToken && t.isNumericLiteral(e.operand)) return -Number(e.operand.text);
+    if (t.isPrefixUnaryExpression(e) && e.operator === t.SyntaxKind.ExclamationToken) return boolVal(this.cond(e, scope));
     if (e.kind === t.SyntaxKind.TrueKeyword) return true;
     if (e.kind === t.SyntaxKind.FalseKeyword) return false;
     if (e.kind === t.SyntaxKind.NullKeyword) return null;
@@ -787,11 +827,9 @@ class FileCompiler {
         if (typeof a === 'number' && typeof b === 'number') return a + b;
         return concat([a, b]);
       }
-      const cmp = [t.SyntaxKind.EqualsEqualsEqualsToken, t.SyntaxKind.EqualsEqualsToken, t.SyntaxKind.ExclamationEqualsEqualsToken, t.SyntaxKind.ExclamationEqualsToken];
-      if (cmp.includes(op)) {
-        const c = this.cond(e, scope);
-        return 'lit' in c ? c.lit : { when: c, then: true, else: false };
-      }
+      if (EQUALITY.has(op)) return boolVal(this.cond(e, scope));
+      // `a === 'x' || a === 'y'`: a boolean, as a condition
+      if ((op === t.SyntaxKind.BarBarToken || op === t.SyntaxKind.AmpersandAmpersandToken) && this.isBoolish(e, scope)) return boolVal(this.cond(e, scope));
       if (op === t.SyntaxKind.BarBarToken || op === t.SyntaxKind.QuestionQuestionToken) {
         const a = this.val(e.left, scope);
         const b = this.val(e.right, scope);
@@ -825,9 +863,20 @@ class FileCompiler {
         return { local: name };
       case 'imp':
         return { imp: b.imp, name: b.name, ...(b.path ? { path: b.path } : {}) };
+      case 'alias':
+        return this.aliasVal(b.chain, name);
       default:
         return { expr: name };
     }
+  }
+
+  /** An alias as a value (`const db = knex`, then `db.client.dialect`): its root and the members it reads. */
+  private aliasVal(chain: Chain, name: string): Val {
+    const r = chain.root;
+    if (chain.calls.some((c) => c.args)) return { expr: name };
+    let v: Val = 'local' in r ? { local: r.local } : 'this' in r ? { local: 'this' } : 'imp' in r ? { imp: r.imp, name: r.name, ...(r.path ? { path: r.path } : {}) } : { expr: r.free };
+    for (const c of chain.calls) v = this.memberOf(v, c.m);
+    return v;
   }
 
   private propName(n: import('ts-morph').ts.PropertyName, scope: Scope): string | null {
@@ -856,6 +905,8 @@ class FileCompiler {
     }
     if (t.isPropertyAccessExpression(callee)) {
       const m = callee.name.text;
+      const inc = m === 'includes' ? this.includesCond(e, scope) : null;
+      if (inc) return boolVal(inc);
       const recv = this.unwrap(callee.expression);
       if (t.isIdentifier(recv)) {
         const b = scope.get(recv.text);
@@ -1113,6 +1164,19 @@ class FileCompiler {
     }
     return null;
   }
+}
+
+/** The equality operators' syntax kinds (filled when the first file is compiled: TypeScript is loaded on first use). */
+const EQUALITY = new Set<number>();
+
+/** A boolean value of a condition: the literal, or the condition decided at replay. */
+function boolVal(c: Cond): Val {
+  return 'lit' in c ? c.lit : { when: c, then: true, else: false };
+}
+
+/** Is a value a condition's boolean (`const isPg = knex.client.driverName === 'pg'`)? */
+function isBoolWhen(v: Val): v is { when: Cond; then: true; else: false } {
+  return typeof v === 'object' && v !== null && 'when' in v && v.then === true && v.else === false;
 }
 
 /** A value the parse could not know at all (an arbitrary expression). */

@@ -14,6 +14,7 @@ import {
   RawSql,
   type ArgValue,
   type Dialect,
+  type KnexClientInfo,
 } from './knex-types.js';
 
 /*
@@ -117,6 +118,14 @@ class FnHandle {
 class Namespace {
   constructor(readonly file: FileContext) {}
 }
+/**
+ * `knex.client` and `knex.client.config`: not known as values (opaque), but read for `dialect`,
+ * `driverName` and `config.client` they give what the run's client holds, when it is known.
+ * A value not known statically read for `.client` is taken as a knex instance's (as a chain on
+ * such a value starting with `.schema` is taken as a builder).
+ */
+class ClientRole extends Opaque {}
+class ConfigRole extends Opaque {}
 
 interface ForeignData {
   columns: string[];
@@ -246,6 +255,8 @@ export class Replay {
     state: SchemaState,
     private readonly dialect: Dialect,
     private readonly files: { get(path: string): FileContext | undefined },
+    /** What `knex.client` holds for the run's client; undefined when the client is not known. */
+    private readonly client?: KnexClientInfo,
   ) {
     // the state's maps are not changed: each is copied on its first write
     this.tables = new TrackedMap(state.tables, (m) => new PMap(m));
@@ -298,14 +309,15 @@ export class Replay {
 
   /** Run statements; what ended them early: a `return`, a `break` or a `continue`. */
   private exec(body: readonly Stmt[], frame: Frame): Jump {
-    for (const st of body) {
-      const j = this.stmt(st, frame);
+    for (let i = 0; i < body.length; i++) {
+      const j = this.stmt(body[i]!, frame, body, i);
       if (j) return j;
     }
     return null;
   }
 
-  private stmt(st: Stmt, frame: Frame): Jump {
+  /** Run one statement (`body[at]`: what follows it decides whether an undecided `if (x) return` matters). */
+  private stmt(st: Stmt, frame: Frame, body?: readonly Stmt[], at = 0): Jump {
     switch (st.k) {
       case 'chain':
         this.chain(st.chain, frame, st.line, st.lazy);
@@ -343,7 +355,9 @@ export class Replay {
       case 'if': {
         const c = this.cond(st.cond, frame);
         if (c === undefined) {
-          if (mayChangeSchema(st.then) || mayChangeSchema(st.else)) {
+          // (a branch that returns or breaks decides whether the statements after the if run)
+          const jumps = mayJump(st.then) || mayJump(st.else);
+          if (mayChangeSchema(st.then) || mayChangeSchema(st.else) || (jumps && !!body && mayChangeSchema(body.slice(at + 1)))) {
             this.info('knex/condition-unknown', `condition ${condText(st.cond)} is not known statically; its first branch is replayed`, st.line);
           }
           return this.exec(st.then, new Frame(frame.file, frame));
@@ -497,6 +511,18 @@ export class Replay {
   }
 
   private member(base: Runtime, key: Runtime, depth: number): Runtime {
+    if (base instanceof ClientRole) {
+      const c = this.client;
+      if (c && key === 'dialect') return c.dialect;
+      if (c && key === 'driverName') return c.driverName;
+      if (key === 'config') return new ConfigRole(`${base.text}.config`);
+      return new Opaque(`${base.text}.${String(key)}`);
+    }
+    if (base instanceof ConfigRole) {
+      if (this.client && key === 'client') return this.client.configClient;
+      return new Opaque(`${base.text}.${String(key)}`);
+    }
+    if (key === 'client' && (base instanceof KnexRole || base instanceof Opaque)) return new ClientRole(base instanceof Opaque ? `${base.text}.client` : 'knex.client');
     if (base instanceof Namespace) return typeof key === 'string' ? this.exportValue(base.file, key, depth) : new Opaque('?');
     if (Array.isArray(base)) {
       if (key === 'length') return base.length;
@@ -573,11 +599,25 @@ export class Replay {
     if ('eq' in c) {
       const a = this.value(c.eq[0], frame);
       const b = this.value(c.eq[1], frame);
-      const known = (x: Runtime): boolean => x === null || x === undefined || ['string', 'number', 'boolean'].includes(typeof x);
       if (!known(a) || !known(b)) return undefined;
       return (a === b) !== !!c.neg;
     }
+    if ('includes' in c) {
+      const list = this.value(c.includes[0], frame);
+      const item = this.value(c.includes[1], frame);
+      if (!known(item)) return undefined;
+      if (typeof list === 'string') return typeof item === 'string' ? list.includes(item) : undefined;
+      if (!Array.isArray(list)) return undefined;
+      if ((list as Runtime[]).includes(item)) return true;
+      return list.every(known) ? false : undefined;
+    }
     if ('truthy' in c) {
+      const t = c.truthy;
+      if (t !== null && typeof t === 'object' && 'when' in t) {
+        // `const isPg = <a condition>; if (isPg)`: not known when its condition is not
+        const w = this.cond(t.when, frame);
+        return w === undefined ? undefined : this.cond({ truthy: w ? t.then : t.else }, frame);
+      }
       const v = this.value(c.truthy, frame);
       if (v instanceof Opaque) return undefined;
       if (v === null || v === undefined || typeof v !== 'object') return !!v;
@@ -1360,8 +1400,18 @@ export function mayChangeSchema(body: readonly Stmt[]): boolean {
   });
 }
 
+/** Whether statements may end their block early (a `return`, `break` or `continue`, also inside an if or a switch's clauses). */
+function mayJump(body: readonly Stmt[]): boolean {
+  return body.some((st) => st.k === 'return' || st.k === 'break' || st.k === 'continue' || (st.k === 'if' && (mayJump(st.then) || mayJump(st.else))));
+}
+
 function callbackMayChange(c: { args?: Arg[] }): boolean {
   return !!c.args?.some((a) => a !== null && typeof a === 'object' && 'cb' in a && mayChangeSchema(a.cb.body));
+}
+
+/** A value known statically and compared by identity: a literal, null or undefined. */
+function known(x: Runtime): boolean {
+  return x === null || x === undefined || typeof x === 'string' || typeof x === 'number' || typeof x === 'boolean';
 }
 
 function action(s: string): ReferentialAction | undefined {
@@ -1433,6 +1483,7 @@ function condText(c: Cond): string {
   if ('or' in c) return `${condText(c.or[0])} || ${condText(c.or[1])}`;
   if ('eq' in c) return `${valText(c.eq[0])} ${c.neg ? '!==' : '==='} ${valText(c.eq[1])}`;
   if ('truthy' in c) return valText(c.truthy);
+  if ('includes' in c) return `${valText(c.includes[0])}.includes(${valText(c.includes[1])})`;
   if ('chain' in c) return c.chain.calls.map((x) => x.m).join('.');
   return String(c.lit);
 }

@@ -18,6 +18,58 @@ export function dialectOf(client: string | undefined): Dialect | undefined {
   return undefined;
 }
 
+/**
+ * What a Knex instance's client says about the database: `knex.client.dialect`,
+ * `knex.client.driverName`, and `knex.client.config.client` (the configuration's `client` as
+ * written, absent when the configuration names it as `dialect`).
+ */
+export interface KnexClientInfo {
+  dialect: string;
+  driverName: string;
+  configClient?: string;
+}
+
+/**
+ * `dialect` and `driverName` of each client name Knex accepts, from Knex 3.3's own source:
+ * lib/constants.js (`SUPPORTED_CLIENTS`; `CLIENT_ALIASES` pg and postgresql -> postgres,
+ * sqlite -> sqlite3), lib/dialects/index.js (the class of each name), and the prototype of each
+ * class in lib/dialects/<name>/index.js: mysql2 and mariadb inherit MySQL's dialect, cockroachdb
+ * and pgnative PostgreSQL's, better-sqlite3 SQLite3's. These are the prototype's values, which a
+ * migration sees: Knex runs migrations in a transaction by default, whose client is made from
+ * the class's prototype (lib/execution/transaction.js `makeTxClient`), so pgnative's driverName
+ * reads 'pg' there (its constructor sets 'pgnative' on the instance only). Knex compares client
+ * names case-sensitively and no longer accepts `oracle`.
+ */
+const KNEX_CLIENTS: Readonly<Record<string, readonly [dialect: string, driverName: string]>> = Object.freeze({
+  pg: ['postgresql', 'pg'],
+  postgres: ['postgresql', 'pg'],
+  postgresql: ['postgresql', 'pg'],
+  pgnative: ['postgresql', 'pg'],
+  cockroachdb: ['postgresql', 'cockroachdb'],
+  redshift: ['redshift', 'pg-redshift'],
+  mysql: ['mysql', 'mysql'],
+  mysql2: ['mysql', 'mysql2'],
+  mariadb: ['mysql', 'mariadb'],
+  sqlite: ['sqlite3', 'sqlite3'],
+  sqlite3: ['sqlite3', 'sqlite3'],
+  'better-sqlite3': ['sqlite3', 'better-sqlite3'],
+  mssql: ['mssql', 'mssql'],
+  oracledb: ['oracle', 'oracledb'],
+});
+
+/** The client names Knex accepts. */
+export const KNEX_CLIENT_NAMES: readonly string[] = Object.freeze(Object.keys(KNEX_CLIENTS));
+
+/**
+ * What `knex.client` holds for a configured client name (`configKey` 'dialect' when the
+ * configuration names the client as `dialect`), or undefined for a name Knex does not accept.
+ */
+export function knexClient(name: string | undefined, configKey: 'client' | 'dialect' = 'client'): KnexClientInfo | undefined {
+  const c = name !== undefined && Object.prototype.hasOwnProperty.call(KNEX_CLIENTS, name) ? KNEX_CLIENTS[name] : undefined;
+  if (!c) return undefined;
+  return { dialect: c[0], driverName: c[1], ...(configKey === 'client' ? { configClient: name } : {}) };
+}
+
 /** The default namespace (database schema) of a dialect: a table in it gets no namespace. */
 export function defaultNamespace(d: Dialect): string | undefined {
   if (d === 'postgresql') return 'public';
