@@ -485,8 +485,8 @@ function toView(v: ViewState): NonNullable<SnapshotInput['views']>[number] {
 export class KnexSession implements AdapterSession<KnexFacts> {
   private steps: Step[] = [];
   private dialect: Dialect | null = null;
-  /** The client the steps were replayed for (`clientKey`). */
-  private client: string | null = null;
+  /** The client the steps were replayed for (null before the first version). */
+  private client: KnexClientInfo | undefined | null = null;
   /** Migrations replayed by this session (for tests and benchmarks). */
   replayed = 0;
   /** Migrations of a refold taken over from the previous fold without replaying them. */
@@ -511,11 +511,11 @@ export class KnexSession implements AdapterSession<KnexFacts> {
 
   assemble(input: AssembleInput<KnexFacts>): AssembleResult {
     const plan = this.plan(input);
-    const client = clientKey(plan.client);
-    if (plan.dialect !== this.dialect || client !== this.client) {
+    // (knexClient gives one object per client: a different object is a different client)
+    if (plan.dialect !== this.dialect || plan.client !== this.client) {
       this.steps = [];
       this.dialect = plan.dialect;
-      this.client = client;
+      this.client = plan.client;
     }
     const steps = this.steps;
     let i = 0;
@@ -629,11 +629,6 @@ export class KnexSession implements AdapterSession<KnexFacts> {
     const views = [...state.views.values()].map(toView);
     return { snapshot: { tables, views }, diagnostics, counters: { ...last.counters } };
   }
-}
-
-/** A key of what `knex.client` holds: the replay of a condition on it depends on nothing else. */
-function clientKey(c: KnexClientInfo | undefined): string {
-  return c ? `${c.dialect}|${c.driverName}|${c.configClient ?? ''}` : '';
 }
 
 /** Assemble one version without a session (a fresh fold from the first migration). */

@@ -67,8 +67,16 @@ export const KNEX_CLIENT_NAMES: readonly string[] = Object.freeze(Object.keys(KN
 export function knexClient(name: string | undefined, configKey: 'client' | 'dialect' = 'client'): KnexClientInfo | undefined {
   const c = name !== undefined && Object.prototype.hasOwnProperty.call(KNEX_CLIENTS, name) ? KNEX_CLIENTS[name] : undefined;
   if (!c) return undefined;
-  return { dialect: c[0], driverName: c[1], ...(configKey === 'client' ? { configClient: name } : {}) };
+  // one object per name and key: a session tells a change of client by identity
+  const key = `${configKey}|${name}`;
+  let info = clientMemo.get(key);
+  if (!info) {
+    info = Object.freeze({ dialect: c[0], driverName: c[1], ...(configKey === 'client' ? { configClient: name } : {}) });
+    clientMemo.set(key, info);
+  }
+  return info;
 }
+const clientMemo = new Map<string, KnexClientInfo>();
 
 /** The default namespace (database schema) of a dialect: a table in it gets no namespace. */
 export function defaultNamespace(d: Dialect): string | undefined {
