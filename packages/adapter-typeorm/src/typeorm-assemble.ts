@@ -11,9 +11,9 @@ import {
 import {
   exportSignature, get, isArrE, isFnE, isObjE, isSymE, isUnk, Project, str, symName, textOf, type E, type Sym, type Tracked, type VersionDelta,
 } from './typeorm-evaluate.js';
-import { globMatcher } from './typeorm-modules.js';
+import { globMatcher, packagesByName, type WorkspacePackage } from './typeorm-modules.js';
 import { namingRules, shorten, type NamingRules } from './typeorm-naming.js';
-import { entityGlobs } from './typeorm-locate.js';
+import { entityGlobs, takeWorkspacePackages } from './typeorm-locate.js';
 import type { ClassFact, ConfigFact, TypeormFileFacts } from './typeorm-parse.js';
 import {
   driverFamily, isSupportedType, mappedTypes, nativeTypeText, neutralType, normalizeType,
@@ -315,8 +315,11 @@ class Builder {
   private targetsUsed: Map<string, string> | null = null;
   private readonly sigMemo = new Map<EntMeta, string>();
 
-  constructor(files: Map<string, TypeormFileFacts>, readonly settings: TypeormSettings, readonly cache: AssemblyCache, delta?: VersionDelta) {
-    this.project = new Project(files, delta);
+  constructor(
+    files: Map<string, TypeormFileFacts>, readonly settings: TypeormSettings, readonly cache: AssemblyCache, delta?: VersionDelta,
+    packages?: ReadonlyMap<string, readonly WorkspacePackage[]>,
+  ) {
+    this.project = new Project(files, delta, packages);
     this.reader = new DecoratorReader(this.project, settings);
     this.classByKey = cache.classByKey;
   }
@@ -1988,7 +1991,11 @@ export class TypeormAssembler {
   private builder: Builder | null = null;
   private frame: Frame | null = null;
 
+  /** The workspace packages the locate steps before this assembler resolved imports into, by name. */
+  private readonly packages: ReadonlyMap<string, readonly WorkspacePackage[]>;
+
   constructor(options: AdapterOptionValues) {
+    this.packages = packagesByName(takeWorkspacePackages());
     this.settings = readSettings(options);
     this.settingsKey = JSON.stringify([this.settings.naming, this.settings.database, [...this.settings.decorators]]);
   }
@@ -2043,7 +2050,7 @@ export class TypeormAssembler {
     // the data source is read again when what it read changed; what every result depends on is
     // the options, the paths (module resolution), the data source and tsconfig files
     if (!b || cache.version === 1 || pathsChanged || configsChanged || !b.dsResult || !b.project.valid(b.dsResult)) {
-      const nb = new Builder(files, settings, cache, delta);
+      const nb = new Builder(files, settings, cache, delta, this.packages);
       const ds = nb.readDataSourceTracked(files, cache.configFiles);
       const global = JSON.stringify([this.settingsKey, this.pathsKey, [...ds.deps].map(([p, f]) => [p, typeof f === 'string' ? f : factId(f)])]);
       if (!b || global !== cache.global) {

@@ -1,7 +1,7 @@
 import { posix } from 'node:path';
 import type { Diagnostic } from '@schema-strata/core/extract';
 import { TYPEORM_DECORATORS } from './typeorm-config.js';
-import { ModuleResolver, nearestTsconfig, tsconfigView, type TsconfigView } from './typeorm-modules.js';
+import { ModuleResolver, nearestTsconfig, tsconfigView, type TsconfigView, type WorkspacePackage } from './typeorm-modules.js';
 import type {
   AliasFact, ClassFact, ConstFact, DesignMember, DesignType, EnumFact, FunctionFact, SchemaFact, TypeormFileFacts, Value,
 } from './typeorm-parse.js';
@@ -173,11 +173,20 @@ export class Project {
 
   private expKeys: string[];
 
-  constructor(public files: ReadonlyMap<string, TypeormFileFacts>, private delta?: VersionDelta) {
+  /** `packages`: the workspace packages the locate steps resolved imports into, by name (see `takeWorkspacePackages`). */
+  constructor(public files: ReadonlyMap<string, TypeormFileFacts>, private delta?: VersionDelta, packages?: ReadonlyMap<string, readonly WorkspacePackage[]>) {
     this.expKeys = (delta?.changed ?? []).map((p) => `exp:${p}`);
     // the set of paths is the same for the project's life (module resolution and tsconfig views depend on it)
     const has = (p: string): boolean => this.files.has(p);
-    this.resolver = new ModuleResolver(has, (f) => this.tsconfigFor(f));
+    let dirs: Set<string> | undefined;
+    const hasDir = (d: string): boolean => {
+      if (!dirs) {
+        dirs = new Set();
+        for (const p of this.files.keys()) for (let x = posix.dirname(p); x !== '.' && !dirs.has(x); x = posix.dirname(x)) dirs.add(x);
+      }
+      return d === '' || dirs.has(d);
+    };
+    this.resolver = new ModuleResolver(has, (f) => this.tsconfigFor(f), packages && packages.size > 0 ? { packages: (n) => packages.get(n), hasDir } : undefined);
   }
 
   /** Move to the next version (same paths, options and configuration files): only the facts of `delta.changed` differ. */

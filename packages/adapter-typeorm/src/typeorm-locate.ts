@@ -1,7 +1,12 @@
 import { posix } from 'node:path';
 import { BlobMemo, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
 import { readSettings, TYPEORM_DECORATORS } from './typeorm-config.js';
-import { globMatcher, isDeclarationFile, ModuleResolver, nearestTsconfig, SOURCE_FILE, tsconfigView, type TsconfigView } from './typeorm-modules.js';
+import {
+  globMatcher, isDeclarationFile, ModuleResolver, nearestTsconfig, packagesByName, parsePackageJson, sourceGlobs, SOURCE_FILE, tsconfigView,
+  type PackageFact, type TsconfigView, type WorkspacePackage,
+} from './typeorm-modules.js';
+
+export { sourceGlobs };
 import { isOrmconfigPath, isTsconfigPath, parseTypeormFile, type ConfigFact, type TsconfigFact, type TypeormFileFacts, type Value } from './typeorm-parse.js';
 
 /** Paths that can matter to locating or reading TypeORM entities. */
@@ -63,6 +68,27 @@ function scanText(text: string, entityDecorators: readonly string[]): Scan {
 const scanMemo = new Map<string, Map<string, Scan>>();
 const factsMemo = new BlobMemo<TypeormFileFacts | null>();
 const tsconfigMemo = new BlobMemo<TsconfigFact | null>();
+const packageMemo = new BlobMemo<PackageFact | null>();
+
+const isPackageJson = (p: string): boolean => (p === 'package.json' || p.endsWith('/package.json')) && !p.includes('node_modules/');
+
+/**
+ * The workspace packages the locate steps resolved imports into since the last assembler was made
+ * (see `takeWorkspacePackages`), by what they say (one entry per directory and content).
+ */
+const resolvedPackages = new Map<string, WorkspacePackage>();
+
+/**
+ * The workspace packages that imports were resolved into since the last call, and a fresh start.
+ * The assembly sees only the located files, not the package.json files the locate step consulted
+ * to find them: a run's assembler takes these when it is made (after the walk's locate steps), and
+ * resolves a bare specifier to the file of one of them that its version holds.
+ */
+export function takeWorkspacePackages(): WorkspacePackage[] {
+  const list = [...resolvedPackages.values()];
+  resolvedPackages.clear();
+  return list;
+}
 
 /** Parsed facts of a configuration file (locate reads these few files in full), by blob id. */
 async function factsOf(tree: TreeView, path: string): Promise<TypeormFileFacts | undefined> {
@@ -101,24 +127,6 @@ export function projectDirOf(file: string, has: (p: string) => boolean): { dir: 
     if (!d) return { dir: '' };
     dir = posix.dirname(d);
   }
-}
-
-/**
- * Globs that point at compiled output (`dist/**\/*.entity.js`) mapped back to the sources through
- * the tsconfig's `outDir` / `rootDir`, and `.js` patterns also read as `.ts`.
- */
-export function sourceGlobs(glob: string, ts: TsconfigView | undefined, hasDir: (d: string) => boolean, projectDir: string): string[] {
-  const out = new Set<string>([glob]);
-  let g = glob;
-  if (ts?.outDir !== undefined && (g === ts.outDir || g.startsWith(ts.outDir + '/'))) {
-    const root = ts.rootDir ?? (hasDir(projectDir ? `${projectDir}/src` : 'src') ? (projectDir ? `${projectDir}/src` : 'src') : projectDir);
-    g = (root ? root : '') + g.slice(ts.outDir.length);
-    g = g.replace(/^\//, '');
-    out.add(g);
-  }
-  if (/\.js\b/.test(g) && !/\.ts\b/.test(g)) out.add(g.replace(/\.js\b/g, '.ts'));
-  if (/\.js\b/.test(glob) && !/\.ts\b/.test(glob)) out.add(glob.replace(/\.js\b/g, '.ts'));
-  return [...out];
 }
 
 /** Globs of one `entities` path, relative to the repository root (`/`-prefixed paths are already so, from __dirname). */
@@ -322,7 +330,6 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
   };
   // read every tsconfig of the tree first (they are few and small), so that views are synchronous
   for (const p of allList) if (isTsconfigPath(p)) tsFacts.set(p, await tsconfigFactOf(tree, p));
-  const resolver = new ModuleResolver(has, tsconfigFor);
   const dirs = new Set<string>();
   for (const p of allList) {
     let d = posix.dirname(p);
@@ -332,6 +339,17 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
     }
   }
   const hasDir = (d: string): boolean => d === '' || dirs.has(d);
+  // the repository's own packages (every package.json of the tree, node_modules aside): a bare
+  // specifier naming one resolves into its sources
+  const packages: WorkspacePackage[] = [];
+  for (const p of allList) {
+    if (!isPackageJson(p)) continue;
+    const fact = await packageMemo.of(tree, p, (text) => (text === undefined ? null : parsePackageJson(text)));
+    if (fact) packages.push({ ...fact, file: p, dir: p === 'package.json' ? '' : p.slice(0, -'/package.json'.length) });
+  }
+  const byName = packagesByName(packages);
+  const usedPackages = new Set<WorkspacePackage>();
+  const resolver = new ModuleResolver(has, tsconfigFor, { packages: (n) => byName.get(n), hasDir, usedPackage: (pkg) => usedPackages.add(pkg) });
 
   const consulted = new Set<string>();
   const configFiles = new Set<string>();
@@ -400,6 +418,16 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
   // follow imports: in full from files that use TypeORM, two steps from other files
   const included = new Set<string>(roots);
   const queue: Array<{ path: string; depth: number }> = roots.map((path) => ({ path, depth: 0 }));
+  // the fewest steps each file was reached in: a file reached again in fewer (a barrel that a
+  // configuration file imports, and an entity too) is followed again from there
+  const steps = new Map<string, number>(roots.map((path) => [path, 0]));
+  const reach = (path: string, depth: number): void => {
+    const before = steps.get(path);
+    if (before !== undefined && before <= depth) return;
+    steps.set(path, depth);
+    included.add(path);
+    queue.push({ path, depth });
+  };
   // a configuration file's own imports are read only for the names its options use (a naming strategy class, a list of entities)
   for (const c of configFiles) {
     if (!sourceOf(c)) continue;
@@ -422,10 +450,7 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
       const names = [...imp.names.map(([local]) => local), ...(imp.def ? [imp.def] : []), ...(imp.ns ? [imp.ns] : [])];
       if (!names.some((n) => used.has(n))) continue;
       const r = resolver.resolve(c, imp.from);
-      if (r.kind === 'file' && !included.has(r.path)) {
-        included.add(r.path);
-        queue.push({ path: r.path, depth: 2 });
-      }
+      if (r.kind === 'file') reach(r.path, 2);
     }
   }
   while (queue.length > 0) {
@@ -438,12 +463,18 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
     // entity files and files using TypeORM's decorators are followed in full; two steps from others
     for (const spec of scan.imports) {
       const r = resolver.resolve(path, spec);
-      if (r.kind !== 'file' || included.has(r.path)) continue;
-      included.add(r.path);
-      queue.push({ path: r.path, depth: next });
+      if (r.kind === 'file') reach(r.path, next);
     }
   }
   for (const c of configFiles) included.add(c);
+  // a package that imports were resolved into: its package.json was consulted, and the tsconfig
+  // files that map its compiled output to its sources are read
+  for (const pkg of usedPackages) {
+    consulted.add(pkg.file);
+    const v = tsconfigFor(pkg.file);
+    if (v) for (const f of v.files) included.add(f);
+    resolvedPackages.set(JSON.stringify([pkg.file, pkg.name, pkg.entries, pkg.subpaths ?? []]), pkg);
+  }
   for (const p of [...included]) {
     if (!sourceOf(p)) continue;
     const v = tsconfigFor(p);

@@ -104,14 +104,179 @@ export function nearestTsconfig(file: string, has: (p: string) => boolean): stri
   }
 }
 
+/**
+ * Globs that point at compiled output (`dist/**\/*.entity.js`) mapped back to the sources through
+ * the tsconfig's `outDir` / `rootDir`, and `.js` patterns also read as `.ts`.
+ */
+export function sourceGlobs(glob: string, ts: TsconfigView | undefined, hasDir: (d: string) => boolean, projectDir: string): string[] {
+  const out = new Set<string>([glob]);
+  let g = glob;
+  if (ts?.outDir !== undefined && (g === ts.outDir || g.startsWith(ts.outDir + '/'))) {
+    const root = ts.rootDir ?? (hasDir(projectDir ? `${projectDir}/src` : 'src') ? (projectDir ? `${projectDir}/src` : 'src') : projectDir);
+    g = (root ? root : '') + g.slice(ts.outDir.length);
+    g = g.replace(/^\//, '');
+    out.add(g);
+  }
+  if (/\.js\b/.test(g) && !/\.ts\b/.test(g)) out.add(g.replace(/\.js\b/g, '.ts'));
+  if (/\.js\b/.test(glob) && !/\.ts\b/.test(glob)) out.add(glob.replace(/\.js\b/g, '.ts'));
+  return [...out];
+}
+
+/** What module resolution needs of a package.json: its name and entry points (from its text alone). */
+export interface PackageFact {
+  name: string;
+  /** `types`, `typings`, `main` and `exports["."]` (its first target by the conditions TypeScript and Node read), as written. */
+  entries: string[];
+  /** `exports` subpaths (`./lib/*`) with their targets, when `exports` is a map of subpaths. */
+  subpaths?: Array<[string, string]>;
+}
+
+/** A package of the repository (a workspace package): where its package.json is and what it says. */
+export interface WorkspacePackage extends PackageFact {
+  /** The package.json's path. */
+  file: string;
+  /** Its directory ('' for the repository root). */
+  dir: string;
+}
+
+const CONDITIONS = ['types', 'typings', 'import', 'require', 'node', 'default'];
+
+/** The first target of an `exports` value: a string, the first of a list, or the first condition TypeScript or Node would take. */
+function exportTarget(v: unknown, depth = 0): string | undefined {
+  if (depth > 4) return undefined;
+  if (typeof v === 'string') return v;
+  if (Array.isArray(v)) {
+    for (const x of v) {
+      const t = exportTarget(x, depth + 1);
+      if (t) return t;
+    }
+    return undefined;
+  }
+  if (v && typeof v === 'object') {
+    const o = v as Record<string, unknown>;
+    for (const c of CONDITIONS) if (c in o) {
+      const t = exportTarget(o[c], depth + 1);
+      if (t) return t;
+    }
+  }
+  return undefined;
+}
+
+/** The resolution facts of a package.json's text; null when it has no name or is not JSON. */
+export function parsePackageJson(text: string): PackageFact | null {
+  let j: unknown;
+  try {
+    j = JSON.parse(text);
+  } catch {
+    return null;
+  }
+  if (!j || typeof j !== 'object') return null;
+  const o = j as Record<string, unknown>;
+  if (typeof o.name !== 'string' || !o.name) return null;
+  const entries: string[] = [];
+  for (const k of ['types', 'typings', 'main']) if (typeof o[k] === 'string' && o[k]) entries.push(o[k] as string);
+  const ex = o.exports;
+  let subpaths: Array<[string, string]> | undefined;
+  if (ex && typeof ex === 'object' && !Array.isArray(ex) && Object.keys(ex).some((k) => k.startsWith('.'))) {
+    subpaths = [];
+    for (const [k, v] of Object.entries(ex as Record<string, unknown>)) {
+      const t = exportTarget(v);
+      if (!t) continue;
+      if (k === '.') entries.push(t);
+      else subpaths.push([k, t]);
+    }
+  } else {
+    const t = exportTarget(ex);
+    if (t) entries.push(t);
+  }
+  return { name: o.name, entries, ...(subpaths && subpaths.length > 0 ? { subpaths } : {}) };
+}
+
+/** The package name and subpath of a bare specifier (`@scope/name/sub`, `name/sub`), or null. */
+export function splitSpecifier(spec: string): { name: string; sub: string } | null {
+  if (spec.startsWith('.') || spec.startsWith('/') || spec.includes(':')) return null;
+  const parts = spec.split('/');
+  const n = spec.startsWith('@') ? 2 : 1;
+  if (parts.length < n || parts.slice(0, n).some((x) => !x)) return null;
+  return { name: parts.slice(0, n).join('/'), sub: parts.slice(n).join('/') };
+}
+
+/** Workspace packages by name; several of one name in the order resolution tries them (by directory). */
+export function packagesByName(list: Iterable<WorkspacePackage>): Map<string, WorkspacePackage[]> {
+  const out = new Map<string, WorkspacePackage[]>();
+  for (const p of list) {
+    let l = out.get(p.name);
+    if (!l) out.set(p.name, (l = []));
+    l.push(p);
+  }
+  const key = (p: WorkspacePackage): string => JSON.stringify([p.entries, p.subpaths ?? []]);
+  for (const l of out.values()) l.sort((a, b) => (a.dir < b.dir ? -1 : a.dir > b.dir ? 1 : key(a) < key(b) ? -1 : key(a) > key(b) ? 1 : 0));
+  return out;
+}
+
+/** The targets a package's `exports` subpath map gives a subpath (exact keys, then one-`*` patterns). */
+function subpathTargets(pkg: WorkspacePackage, sub: string): string[] {
+  const want = `./${sub}`;
+  for (const [k, t] of pkg.subpaths ?? []) if (k === want) return [t];
+  for (const [k, t] of pkg.subpaths ?? []) {
+    const star = k.indexOf('*');
+    if (star < 0) continue;
+    const pre = k.slice(0, star);
+    const post = k.slice(star + 1);
+    if (want.startsWith(pre) && want.endsWith(post) && want.length >= pre.length + post.length) return [t.replace('*', want.slice(pre.length, want.length - post.length))];
+  }
+  return [sub];
+}
+
+/** Compiled output directories a package's entry commonly points into, when no tsconfig names one. */
+const OUTPUT_DIRS = new Set(['dist', 'lib', 'build', 'out']);
+
 /** Resolves import specifiers of the project's files against one commit's paths. */
 export class ModuleResolver {
   private readonly memo = new Map<string, Resolved>();
 
+  /**
+   * `packages` gives the repository's own packages of a name (a bare specifier naming one resolves
+   * into its sources); `usedPackage` is told of each package a resolution went into.
+   */
   constructor(
     private readonly has: (p: string) => boolean,
     private readonly tsconfigOf: (file: string) => TsconfigView | undefined,
+    private readonly workspace?: {
+      packages: (name: string) => readonly WorkspacePackage[] | undefined;
+      hasDir: (d: string) => boolean;
+      usedPackage?: (pkg: WorkspacePackage) => void;
+    },
   ) {}
+
+  /**
+   * The source file a package's entry or subpath stands for: compiled output (`dist/index.js`,
+   * `lib/x.d.ts`) mapped back to the sources through the package's tsconfig `outDir` / `rootDir`
+   * (as data source globs are), else `src/` for an output directory no tsconfig names; then the
+   * usual extension and index rules.
+   */
+  private packageFile(pkg: WorkspacePackage, sub: string): string | undefined {
+    const ws = this.workspace!;
+    const targets = sub ? subpathTargets(pkg, sub) : [...pkg.entries, 'index'];
+    const ts = this.tsconfigOf(pkg.file);
+    for (const t of targets) {
+      const base = joinRepo(pkg.dir, t.replace(/\.d\.([cm]?)ts$/, '.$1js'));
+      if (base === null) continue;
+      let view = ts;
+      const first = base.slice(pkg.dir ? pkg.dir.length + 1 : 0).split('/')[0]!;
+      if (ts?.outDir === undefined && OUTPUT_DIRS.has(first) && base.includes('/')) view = { files: [], strictNullChecks: false, ...ts, outDir: pkg.dir ? `${pkg.dir}/${first}` : first };
+      // without a rootDir, TypeScript's is the inputs' common directory: src/ (dist/index.js), or
+      // the package's own (a build with --rootDir ./ gives dist/src/index.js)
+      const views = view?.outDir !== undefined && view.rootDir === undefined ? [view, { ...view, rootDir: pkg.dir }] : [view];
+      const globs = views.flatMap((v) => sourceGlobs(base, v, ws.hasDir, pkg.dir).slice(1));
+      // the sources first, the path as written last
+      for (const g of [...globs, base]) {
+        const found = this.tryFile(g);
+        if (found) return found;
+      }
+    }
+    return undefined;
+  }
 
   private tryFile(base: string): string | undefined {
     const ext = posix.extname(base);
@@ -172,6 +337,19 @@ export class ModuleResolver {
         const found = this.tryFile(base);
         if (found) return { kind: 'file', path: found };
       }
+    }
+    const bare = this.workspace ? splitSpecifier(spec) : null;
+    const pkgs = bare ? this.workspace!.packages(bare.name) : undefined;
+    if (bare && pkgs && pkgs.length > 0) {
+      for (const pkg of pkgs) {
+        const found = this.packageFile(pkg, bare.sub);
+        if (found) {
+          this.workspace!.usedPackage?.(pkg);
+          return { kind: 'file', path: found };
+        }
+      }
+      this.workspace!.usedPackage?.(pkgs[0]!);
+      return { kind: 'missing', path: joinRepo(pkgs[0]!.dir, bare.sub) ?? spec };
     }
     return { kind: 'external', module: spec };
   }
