@@ -540,8 +540,9 @@ export class Replay {
   private importValue(file: FileContext, spec: string, name: string, path?: readonly string[], depth = 0): Runtime {
     const target = file.imports.get(spec);
     const ctx = target ? this.files.get(target) : undefined;
-    if (!ctx) return new Opaque(`${name === '*' || name === 'default' ? '' : name + ' from '}'${spec}'${path && path.length ? '.' + path.join('.') : ''}`);
-    let cur: Runtime = name === '*' ? new Namespace(ctx) : this.exportValue(ctx, name, depth + 1);
+    let cur: Runtime = !ctx
+      ? new Opaque(`${name === '*' || name === 'default' ? '' : name + ' from '}'${spec}'`)
+      : name === '*' ? new Namespace(ctx) : this.exportValue(ctx, name, depth + 1);
     for (const k of path ?? []) cur = this.member(cur, k, depth + 1);
     return cur;
   }

@@ -32,6 +32,24 @@ describe('code the replay cannot decide', () => {
     expect(r.diagnostics.map((d) => `${d.code}@${d.line}`)).toEqual(['knex/condition-unknown@3']);
   });
 
+  it('decides conditions on the client through a destructured client, an imported knex instance and a substring test', () => {
+    const text =
+      "const db = require('../db');\nexports.up = async (knex) => {\n  const { client } = knex;\n  await knex.schema.createTable('tools', (t) => { t.increments('id'); });\n" +
+      "  if (client.dialect === 'sqlite3') await knex.schema.alterTable('tools', (t) => t.string('a'));\n" +
+      "  if (knex.client.config.client.includes('sqlite')) await knex.schema.alterTable('tools', (t) => t.string('b'));\n" +
+      "  if (db.client.driverName === 'better-sqlite3') await knex.schema.alterTable('tools', (t) => t.string('c'));\n" +
+      "  const onMysql = knex.client.dialect === 'mysql' || knex.client.dialect === 'sqlite3';\n  if (!onMysql) return;\n" +
+      "  await knex.schema.alterTable('tools', (t) => t.string('d'));\n};\nexports.down = () => {};\n";
+    const run = (options: Record<string, string>) => {
+      const r = assemble({ 'migrations/001.js': text }, options);
+      return `${r.snapshot.tables[0]!.columns.map((c) => c.name).join(',')} ${r.diagnostics.map((d) => `${d.code}@${d.line}`).join(' ')}`.trim();
+    };
+    expect(run({ 'knex-client': 'better-sqlite3' })).toBe('id,a,b,c,d');
+    expect(run({ 'knex-client': 'pg' })).toBe('id');
+    // no client known: each first branch, and its diagnostic (the early return is reported: statements after it change the schema)
+    expect(run({})).toBe('id,a,b,c knex/condition-unknown@5 knex/condition-unknown@6 knex/condition-unknown@7 knex/condition-unknown@9');
+  });
+
   it('gives a new table the id of its name unless a renamed table keeps that id', () => {
     const r = assemble({
       'migrations/001.js': "exports.up = async (knex) => {\n  await knex.schema.createTable('items', (t) => { t.increments('id'); });\n  await knex.schema.renameTable('items', 'tools');\n  await knex.schema.createTable('items', (t) => { t.increments('id'); });\n};\nexports.down = () => {};\n",
