@@ -11,7 +11,8 @@ import { buildWorkspace } from './workspace-build.js';
 // A monorepo whose entities import from other packages of the same repository by their package
 // names: `@coop/common` (entry `types: lib/index.d.ts`, its tsconfig's outDir `lib` and rootDir
 // `src`; a string enum, the base class of every entity, the members entity, and a subpath into its
-// compiled output, `@coop/common/lib/condition`), `@coop/catalog` (entry `main: dist/index.js`, no
+// compiled output, `@coop/common/lib/condition`; the enum behind a second barrel, src/domain/index.ts,
+// since a re-export is no step of the locate step's two), `@coop/catalog` (entry `main: dist/index.js`, no
 // outDir in its tsconfig.json: the tools entity, a relation target) and `@coop/lending` (loans,
 // reservations, repairs and the data source). The oracle: the workspace linked and built package
 // by package with TypeScript, loaded by Node's own module resolution, and TypeORM 0.3's metadata
@@ -37,17 +38,39 @@ describe('imports from other packages of the same repository', () => {
   it("are the version's files: the sibling's sources and tsconfig, its package.json consulted", async () => {
     const { located } = await runAdapter(workspace);
     expect(located.files).toEqual(expect.arrayContaining([
-      'packages/common/src/loan-state.ts', 'packages/common/src/condition.ts', 'packages/common/src/audited.ts',
+      'packages/common/src/domain/loan-state.ts', 'packages/common/src/condition.ts', 'packages/common/src/audited.ts',
       'packages/common/src/member.entity.ts', 'packages/common/tsconfig.json', 'packages/catalog/src/tool.entity.ts',
     ]));
     expect(located.files.some((p) => p.endsWith('package.json'))).toBe(false);
     expect(located.consulted).toEqual(expect.arrayContaining(['packages/common/package.json', 'packages/catalog/package.json']));
   });
 
+  it('map an entry of dist/src/ back to src/ when the tsconfig has an outDir and no rootDir (a build with --rootDir ./)', async () => {
+    const options = JSON.parse(workspace['packages/lending/tsconfig.json']!) as { compilerOptions: Record<string, unknown> };
+    const { outDir: _o, rootDir: _r, ...common } = options.compilerOptions;
+    const files: Record<string, string> = {
+      'package.json': workspace['package.json']!,
+      'packages/fees/package.json': JSON.stringify({ name: '@coop/fees', main: 'dist/src/index.js', types: 'dist/src/index.d.ts' }),
+      'packages/fees/tsconfig.json': JSON.stringify({ compilerOptions: { ...common, declaration: true, outDir: 'dist' }, include: ['src'] }),
+      'packages/fees/tsconfig.build.json': JSON.stringify({ extends: './tsconfig.json', compilerOptions: { rootDir: '.' } }),
+      'packages/fees/src/index.ts': "export * from './fee-kind';\n",
+      'packages/fees/src/fee-kind.ts': "export enum FeeKind {\n  Late = 'late',\n  Damage = 'damage',\n}\n",
+      'packages/desk/package.json': JSON.stringify({ name: '@coop/desk', dependencies: { '@coop/fees': 'workspace:*' } }),
+      'packages/desk/tsconfig.json': workspace['packages/lending/tsconfig.json']!,
+      'packages/desk/src/fee.entity.ts': "import { Column, Entity, PrimaryGeneratedColumn } from 'typeorm';\nimport { FeeKind } from '@coop/fees';\n\n@Entity('fees')\nexport class Fee {\n  @PrimaryGeneratedColumn()\n  id: number;\n\n  @Column()\n  kind: FeeKind;\n}\n",
+    };
+    const theirs = await buildWorkspace(files, ['packages/fees', 'packages/desk']);
+    expect(theirs.errors).toEqual([]);
+    const ours = await runAdapter(files);
+    expect(ours.diagnostics).toEqual([]);
+    expect(ours.located.files).toContain('packages/fees/src/fee-kind.ts');
+    expect(compareWithOracle(ours.snapshot!, theirs.result, theirs.ds)).toEqual([]);
+  });
+
   it('stay outside code when no package of the repository has the name', async () => {
     const renamed = { ...workspace, 'packages/common/package.json': workspace['packages/common/package.json']!.replace('"@coop/common"', '"@coop/shared"') };
     const ours = await runAdapter(renamed);
-    expect(ours.located.files).not.toContain('packages/common/src/loan-state.ts');
+    expect(ours.located.files).not.toContain('packages/common/src/domain/loan-state.ts');
     expect(ours.diagnostics.map((d) => d.code)).toContain('typeorm/type-unresolved');
   });
 });
@@ -57,7 +80,7 @@ describe('imports from other packages of the same repository', () => {
 // enum made numeric, so that TypeScript's metadata of the column typed by it becomes Number), and
 // a commit outside the schema. Every version is checked against the oracle's build of its tree.
 describe('a history that edits only the sibling package', () => {
-  const STATE = 'packages/common/src/loan-state.ts';
+  const STATE = 'packages/common/src/domain/loan-state.ts';
   const PKG = 'packages/common/package.json';
   const steps: Array<{ message: string; files: Record<string, string | null> }> = [
     { message: 'Workspace of the cooperative: common, catalog and lending packages', files: workspace },

@@ -30,6 +30,8 @@ interface Scan {
   /** May hold data source options. */
   config: boolean;
   imports: string[];
+  /** The specifiers of re-exports (`export * from`, `export { A } from`): following a barrel is no step. */
+  reexports: string[];
 }
 
 const DECORATOR_NAMES = new Set(TYPEORM_DECORATORS as readonly string[]);
@@ -52,6 +54,7 @@ function importsDecorators(text: string): boolean {
 const IMPORT_RE = /(?:^|[^.\w$])(?:import|export)\s*(?:type\s+)?(?:[\w$*{}\s,]*?\s*from\s*)?['"]([^'"\n]+)['"]/g;
 const REQUIRE_RE = /\b(?:require|import)\s*\(\s*['"]([^'"\n]+)['"]\s*\)/g;
 const TYPEORM_RE = /['"]typeorm(?:\/[^'"]*)?['"]/;
+const REEXPORT_RE = /(?:^|[^.\w$])export\s*(?:type\s+)?(?:\*(?:\s*as\s+[\w$]+)?|\{[^}]*\})\s*from\s*['"]([^'"\n]+)['"]/g;
 
 function scanText(text: string, entityDecorators: readonly string[]): Scan {
   const imports = new Set<string>();
@@ -62,7 +65,9 @@ function scanText(text: string, entityDecorators: readonly string[]): Scan {
   let entity = fromTypeorm && (/@\s*(?:[\w$]+\.)*(?:Entity|ChildEntity|ViewEntity)\s*\(/.test(text) || /\bEntitySchema\b/.test(text));
   if (!entity) for (const d of entityDecorators) if (text.includes(`@${d}`)) entity = true;
   const config = /\bentities\s*:/.test(text) || /\bautoLoadEntities\b/.test(text);
-  return { entity, typeorm, config, imports: [...imports] };
+  const reexports = new Set<string>();
+  for (const m of text.matchAll(REEXPORT_RE)) reexports.add(m[1]!);
+  return { entity, typeorm, config, imports: [...imports], reexports: [...reexports] };
 }
 
 const scanMemo = new Map<string, Map<string, Scan>>();
@@ -228,7 +233,8 @@ export function selectionOf(cfg: ConfigFact, configPath: string, has: (p: string
 }
 
 const sameScan = (a: Scan, b: Scan): boolean =>
-  a.entity === b.entity && a.typeorm === b.typeorm && !a.config && !b.config && a.imports.length === b.imports.length && a.imports.every((x, i) => x === b.imports[i]);
+  a.entity === b.entity && a.typeorm === b.typeorm && !a.config && !b.config && a.imports.length === b.imports.length && a.imports.every((x, i) => x === b.imports[i]) &&
+  a.reexports.length === b.reexports.length && a.reexports.every((x, i) => x === b.reexports[i]);
 
 /** The previous commit's answer: most commits change files in ways that do not change which files are read. */
 let last: { sig: string; paths: readonly string[]; blobs: Map<string, string>; result: Located } | undefined;
@@ -303,7 +309,7 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
     let s = scans.get(blob);
     if (!s) {
       const text = await tree.read(p);
-      s = text === undefined ? { entity: false, typeorm: false, config: false, imports: [] } : scanText(text, decorators);
+      s = text === undefined ? { entity: false, typeorm: false, config: false, imports: [], reexports: [] } : scanText(text, decorators);
       scans.set(blob, s);
     }
     return s;
@@ -459,11 +465,13 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
     if (!scan) continue;
     const aware = scan.typeorm || scan.entity;
     const next = aware ? 1 : depth + 1;
-    if (!aware && depth >= 2) continue;
-    // entity files and files using TypeORM's decorators are followed in full; two steps from others
+    // entity files and files using TypeORM's decorators are followed in full; two steps from
+    // others, where a re-export (a barrel, a package's index) is no step
     for (const spec of scan.imports) {
+      const again = !aware && scan.reexports.includes(spec);
+      if (!aware && depth >= 2 && !again) continue;
       const r = resolver.resolve(path, spec);
-      if (r.kind === 'file') reach(r.path, next);
+      if (r.kind === 'file') reach(r.path, again ? depth : next);
     }
   }
   for (const c of configFiles) included.add(c);
