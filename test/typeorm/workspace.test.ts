@@ -2,7 +2,7 @@ import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { extractHistory, type History, type ScriptedCommit } from '@schema-strata/core';
+import { appendCommits, extractHistory, serialiseDocument, toDocument, GENERATOR, type History, type ScriptedCommit } from '@schema-strata/core';
 import { typeormAdapter } from '@schema-strata/adapter-typeorm';
 import { compareWithOracle } from './oracle.js';
 import { readFixture, runAdapter, writeWithTrees } from './harness.js';
@@ -35,14 +35,17 @@ describe('imports from other packages of the same repository', () => {
     expect(loans.columns.find((c) => c.name === 'stage')!.type).toMatchObject({ kind: 'enum', values: ['requested', 'out', 'returned'] });
   });
 
-  it("are the version's files: the sibling's sources and tsconfig, its package.json consulted", async () => {
+  it("are the version's files: the sibling's sources, tsconfig and package.json", async () => {
     const { located } = await runAdapter(workspace);
+    // (the package.json too: the assembly resolves the imports from it, so that a run which did
+    // not locate the commit, its walk taken from the cache, resolves them the same way)
     expect(located.files).toEqual(expect.arrayContaining([
       'packages/common/src/domain/loan-state.ts', 'packages/common/src/condition.ts', 'packages/common/src/audited.ts',
       'packages/common/src/member.entity.ts', 'packages/common/tsconfig.json', 'packages/catalog/src/tool.entity.ts',
+      'packages/common/package.json', 'packages/catalog/package.json',
     ]));
-    expect(located.files.some((p) => p.endsWith('package.json'))).toBe(false);
-    expect(located.consulted).toEqual(expect.arrayContaining(['packages/common/package.json', 'packages/catalog/package.json']));
+    // the root package.json names no package an import resolves into: consulted only
+    expect(located.files).not.toContain('package.json');
   });
 
   it('map an entry of dist/src/ back to src/ when the tsconfig has an outDir and no rootDir (a build with --rootDir ./)', async () => {
@@ -75,8 +78,8 @@ describe('imports from other packages of the same repository', () => {
   });
 });
 
-// A history of the same workspace: a release bump of the sibling's package.json (consulted only:
-// no version), then two commits that edit only the sibling package's enum (a value added; the
+// A history of the same workspace: a release bump of the sibling's package.json (an input: a
+// version with no change), then two commits that edit only the sibling package's enum (a value added; the
 // enum made numeric, so that TypeScript's metadata of the column typed by it becomes Number), and
 // a commit outside the schema. Every version is checked against the oracle's build of its tree.
 describe('a history that edits only the sibling package', () => {
@@ -102,18 +105,49 @@ describe('a history that edits only the sibling package', () => {
 
   afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-  it('makes a version of each enum edit, none of the release bump or the notes', () => {
-    expect(history.versions.map((v) => v.subject)).toEqual(['Workspace of the cooperative: common, catalog and lending packages', 'Loans can be lost', 'Loan states as numbers']);
+  it('makes a version of each enum edit, one with no change of the release bump, none of the notes', () => {
+    expect(history.versions.map((v) => `${v.subject}: ${v.status}`)).toEqual([
+      'Workspace of the cooperative: common, catalog and lending packages: ok', 'Release common 1.3.0: no change', 'Loans can be lost: ok', 'Loan states as numbers: ok',
+    ]);
     expect(history.diagnostics).toEqual([]);
   });
 
   it('records the enum values and then the column type changing with the sibling enum', () => {
     const at = (i: number) => history.changes.filter((c) => c.version === i).map((c) => `${c.kind} ${c.table}.${c.column}`).sort();
-    expect(at(1)).toEqual(['column-enum-values-changed loans.stage']);
-    expect(at(2)).toEqual(['column-default-changed loans.stage', 'column-enum-values-changed loans.stage', 'column-type-changed loans.state']);
-    const retyped = history.changes.find((c) => c.version === 2 && c.kind === 'column-type-changed')!;
+    expect(at(1)).toEqual([]);
+    expect(at(2)).toEqual(['column-enum-values-changed loans.stage']);
+    expect(at(3)).toEqual(['column-default-changed loans.stage', 'column-enum-values-changed loans.stage', 'column-type-changed loans.state']);
+    const retyped = history.changes.find((c) => c.version === 3 && c.kind === 'column-type-changed')!;
     expect([retyped.before, retyped.after]).toEqual(['string', 'integer']);
   });
+
+  it('gives a re-run with the disk cache, after a commit that uses the sibling again, the bytes of a run without it', async () => {
+    const cacheDir = mkdtempSync(join(tmpdir(), 'strata-typeorm-workspace-cache-'));
+    try {
+      const bytes = async (cached: boolean) => serialiseDocument(toDocument(await extractHistory({ repo: dir, adapter: typeormAdapter, ...(cached ? { cacheDir } : {}) }), GENERATOR));
+      expect(await bytes(true)).toBe(await bytes(false));
+      // a new entity of the lending package typed by the sibling's enum: located after the resumed walk
+      const repairs = 'packages/lending/src/opening-hours.entity.ts';
+      await appendCommits(dir, [{
+        date: '2024-03-20T18:00:00+00:00', message: 'Checks on returned tools',
+        files: { [repairs]: "import { Column, Entity, PrimaryGeneratedColumn } from 'typeorm';\n\n@Entity('opening_hours')\nexport class OpeningHours {\n  @PrimaryGeneratedColumn()\n  id: number;\n\n  @Column()\n  weekday: number;\n}\n" },
+      }]);
+      const rerun = await bytes(true);
+      expect(rerun).toBe(await bytes(false));
+      // a window first: the versions before it have no unit in the cache, and are built later from the resumed walk
+      const windowCache = mkdtempSync(join(tmpdir(), 'strata-typeorm-workspace-cache-'));
+      try {
+        const since = history.versions[2]!.commit;
+        await extractHistory({ repo: dir, adapter: typeormAdapter, cacheDir: windowCache, since });
+        const whole = serialiseDocument(toDocument(await extractHistory({ repo: dir, adapter: typeormAdapter, cacheDir: windowCache }), GENERATOR));
+        expect(whole).toBe(await bytes(false));
+      } finally {
+        rmSync(windowCache, { recursive: true, force: true });
+      }
+    } finally {
+      rmSync(cacheDir, { recursive: true, force: true });
+    }
+  }, 60_000);
 
   it("agrees with TypeORM's metadata of the built workspace at every version", async () => {
     for (const v of history.versions) {

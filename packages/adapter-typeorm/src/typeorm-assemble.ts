@@ -13,7 +13,7 @@ import {
 } from './typeorm-evaluate.js';
 import { globMatcher, packagesByName, type WorkspacePackage } from './typeorm-modules.js';
 import { namingRules, shorten, type NamingRules } from './typeorm-naming.js';
-import { entityGlobs, takeWorkspacePackages } from './typeorm-locate.js';
+import { entityGlobs } from './typeorm-locate.js';
 import type { ClassFact, ConfigFact, TypeormFileFacts } from './typeorm-parse.js';
 import {
   driverFamily, isSupportedType, mappedTypes, nativeTypeText, neutralType, normalizeType,
@@ -1991,11 +1991,11 @@ export class TypeormAssembler {
   private builder: Builder | null = null;
   private frame: Frame | null = null;
 
-  /** The workspace packages the locate steps before this assembler resolved imports into, by name. */
-  private readonly packages: ReadonlyMap<string, readonly WorkspacePackage[]>;
+  /** The workspace packages of the current version (its package.json inputs), by name, and their key. */
+  private packages: ReadonlyMap<string, readonly WorkspacePackage[]> = new Map();
+  private packagesKey = '';
 
   constructor(options: AdapterOptionValues) {
-    this.packages = packagesByName(takeWorkspacePackages());
     this.settings = readSettings(options);
     this.settingsKey = JSON.stringify([this.settings.naming, this.settings.database, [...this.settings.decorators]]);
   }
@@ -2045,14 +2045,26 @@ export class TypeormAssembler {
       cache.configFiles = list;
     }
     if (cache.version === 1 || pathsChanged) this.pathsKey = JSON.stringify([...files.keys()].sort());
+    // the workspace packages that bare imports resolve into: the version's package.json inputs
+    let packagesChanged = false;
+    if (cache.version === 1 || changed.some(isPackageFile)) {
+      const list: WorkspacePackage[] = [];
+      for (const [p, f] of files) if (f.kind === 'package' && f.package) list.push({ ...f.package, file: p, dir: p === 'package.json' ? '' : p.slice(0, -'/package.json'.length) });
+      const key = JSON.stringify(list.map((w) => [w.file, w.name, w.entries, w.subpaths ?? []]));
+      if (key !== this.packagesKey) {
+        this.packagesKey = key;
+        this.packages = packagesByName(list);
+        packagesChanged = true;
+      }
+    }
     let b = this.builder;
     if (b) b.advance(files, delta);
     // the data source is read again when what it read changed; what every result depends on is
     // the options, the paths (module resolution), the data source and tsconfig files
-    if (!b || cache.version === 1 || pathsChanged || configsChanged || !b.dsResult || !b.project.valid(b.dsResult)) {
+    if (!b || cache.version === 1 || pathsChanged || configsChanged || packagesChanged || !b.dsResult || !b.project.valid(b.dsResult)) {
       const nb = new Builder(files, settings, cache, delta, this.packages);
       const ds = nb.readDataSourceTracked(files, cache.configFiles);
-      const global = JSON.stringify([this.settingsKey, this.pathsKey, [...ds.deps].map(([p, f]) => [p, typeof f === 'string' ? f : factId(f)])]);
+      const global = JSON.stringify([this.settingsKey, this.pathsKey, this.packagesKey, [...ds.deps].map(([p, f]) => [p, typeof f === 'string' ? f : factId(f)])]);
       if (!b || global !== cache.global) {
         cache.clear();
         cache.global = global;
@@ -2100,3 +2112,8 @@ export function assembleTypeorm(input: AssembleInput<TypeormFileFacts>, options:
 }
 
 export { schemaKey };
+
+/** Whether a path is a package.json (of a workspace package, when it is among the inputs). */
+function isPackageFile(p: string): boolean {
+  return p === 'package.json' || p.endsWith('/package.json');
+}

@@ -173,7 +173,7 @@ export class Project {
 
   private expKeys: string[];
 
-  /** `packages`: the workspace packages the locate steps resolved imports into, by name (see `takeWorkspacePackages`). */
+  /** `packages`: the workspace packages of the version (its package.json inputs), by name. */
   constructor(public files: ReadonlyMap<string, TypeormFileFacts>, private delta?: VersionDelta, packages?: ReadonlyMap<string, readonly WorkspacePackage[]>) {
     this.expKeys = (delta?.changed ?? []).map((p) => `exp:${p}`);
     // the set of paths is the same for the project's life (module resolution and tsconfig views depend on it)

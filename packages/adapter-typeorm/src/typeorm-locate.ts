@@ -77,23 +77,6 @@ const packageMemo = new BlobMemo<PackageFact | null>();
 
 const isPackageJson = (p: string): boolean => (p === 'package.json' || p.endsWith('/package.json')) && !p.includes('node_modules/');
 
-/**
- * The workspace packages the locate steps resolved imports into since the last assembler was made
- * (see `takeWorkspacePackages`), by what they say (one entry per directory and content).
- */
-const resolvedPackages = new Map<string, WorkspacePackage>();
-
-/**
- * The workspace packages that imports were resolved into since the last call, and a fresh start.
- * The assembly sees only the located files, not the package.json files the locate step consulted
- * to find them: a run's assembler takes these when it is made (after the walk's locate steps), and
- * resolves a bare specifier to the file of one of them that its version holds.
- */
-export function takeWorkspacePackages(): WorkspacePackage[] {
-  const list = [...resolvedPackages.values()];
-  resolvedPackages.clear();
-  return list;
-}
 
 /** Parsed facts of a configuration file (locate reads these few files in full), by blob id. */
 async function factsOf(tree: TreeView, path: string): Promise<TypeormFileFacts | undefined> {
@@ -475,13 +458,13 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
     }
   }
   for (const c of configFiles) included.add(c);
-  // a package that imports were resolved into: its package.json was consulted, and the tsconfig
-  // files that map its compiled output to its sources are read
+  // a package that imports were resolved into: its package.json is read (the assembly resolves
+  // the same imports from it: an input, so that the output is the same whether or not this run
+  // located the commit), and so are the tsconfig files that map its compiled output to its sources
   for (const pkg of usedPackages) {
-    consulted.add(pkg.file);
+    included.add(pkg.file);
     const v = tsconfigFor(pkg.file);
     if (v) for (const f of v.files) included.add(f);
-    resolvedPackages.set(JSON.stringify([pkg.file, pkg.name, pkg.entries, pkg.subpaths ?? []]), pkg);
   }
   for (const p of [...included]) {
     if (!sourceOf(p)) continue;

@@ -1,6 +1,7 @@
 import { createRequire } from 'node:module';
 import type { Diagnostic, FileFacts, SourceFile } from '@schema-strata/core/extract';
 import type { ts as TsNamespace } from 'ts-morph';
+import { parsePackageJson, type PackageFact } from './typeorm-modules.js';
 
 /**
  * Per-file facts: what one file says, read from its syntax tree (TypeScript's parser, as ts-morph
@@ -181,7 +182,7 @@ export interface TsconfigFact {
 
 /** The facts of one file. */
 export interface TypeormFileFacts {
-  kind: 'source' | 'tsconfig' | 'config';
+  kind: 'source' | 'tsconfig' | 'config' | 'package';
   imports: ImportFact[];
   exports: ExportFact[];
   /** `export default <expression>` that is not a declaration. */
@@ -194,6 +195,8 @@ export interface TypeormFileFacts {
   schemas: SchemaFact[];
   configs: ConfigFact[];
   tsconfig?: TsconfigFact;
+  /** Of a workspace package's package.json (kind `package`): what module resolution reads of it. */
+  package?: PackageFact;
 }
 
 function emptyFacts(kind: TypeormFileFacts['kind']): TypeormFileFacts {
@@ -818,6 +821,13 @@ export function parseTypeormFile(file: SourceFile): FileFacts<TypeormFileFacts> 
   try {
     if (isTsconfigPath(file.path)) return parseTsconfig(file);
     if (name === 'ormconfig.json') return parseOrmconfigJson(file);
+    if (name === 'package.json') {
+      // a workspace package that imports resolve into (see typeorm-locate.ts): its name and entries
+      const facts = emptyFacts('package');
+      const pkg = parsePackageJson(file.text);
+      if (pkg) facts.package = pkg;
+      return { ok: true, facts };
+    }
     if (name === 'ormconfig.env' || name === '.env') return parseEnv(file);
     if (/^ormconfig\.ya?ml$/.test(name)) {
       return {
