@@ -170,7 +170,9 @@ const mb = (n) => `${(n / 1024 / 1024).toFixed(0)} MiB`;
 /** The Knex adapter with a clock around its own steps (locate, parseFile, the session's assemble). */
 function timedAdapter() {
   const clock = { ms: 0 };
-  const timed = (fn) => async (...args) => {
+  // locate reads files (it awaits git): timed until it resolves; the engine awaits each call
+  // before the next one
+  const timedAsync = (fn) => async (...args) => {
     const t0 = process.hrtime.bigint();
     try {
       return await fn(...args);
@@ -178,9 +180,19 @@ function timedAdapter() {
       clock.ms += Number(process.hrtime.bigint() - t0) / 1e6;
     }
   };
+  // parseFile and assemble are synchronous: timed until they return (awaiting them would count
+  // whatever else runs before the await resumes, as the files parsed ahead of their version do)
+  const timed = (fn) => (...args) => {
+    const t0 = process.hrtime.bigint();
+    try {
+      return fn(...args);
+    } finally {
+      clock.ms += Number(process.hrtime.bigint() - t0) / 1e6;
+    }
+  };
   const adapter = {
     ...knex,
-    locate: timed(knex.locate),
+    locate: timedAsync(knex.locate),
     parseFile: timed(knex.parseFile),
     createSession: (o) => {
       const s = knex.createSession(o);
