@@ -81,7 +81,15 @@ export async function runAdapter(files: Record<string, string>, options: Adapter
       inputs.push({ path, blob: blobOf(text), facts: JSON.parse(JSON.stringify(r.facts)) as TypeormFileFacts });
     } else missing.push(path);
   }
-  const result = await typeormAdapter.assemble({ files: inputs, missing }, options);
+  // the consulted files' facts too, as core hands them over to an adapter that reads them (readsConsulted)
+  const consulted: typeof inputs = [];
+  for (const path of located.consulted ?? []) {
+    const text = files[path];
+    if (text === undefined) continue;
+    const r = await typeormAdapter.parseFile!({ path, blob: blobOf(text), text }, options);
+    if (r.ok) consulted.push({ path, blob: blobOf(text), facts: JSON.parse(JSON.stringify(r.facts)) as TypeormFileFacts });
+  }
+  const result = await typeormAdapter.assemble({ files: inputs, missing, consulted }, options);
   diagnostics.push(...result.diagnostics);
   if ('failed' in result) return { located, failed: true, diagnostics };
   return { located, snapshot: result.snapshot, diagnostics };

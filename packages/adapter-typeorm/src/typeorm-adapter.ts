@@ -35,5 +35,7 @@ export const typeormAdapter: SchemaAdapter<TypeormFileFacts> = Object.freeze({
   parseFile,
   assemble: assembleTypeorm,
   createSession: (options: AdapterOptionValues) => new TypeormAssembler(options),
+  // the assembly resolves imports of the repository's own packages from their package.json
+  readsConsulted: true,
   renderDemo: renderTypeormDemo,
 });

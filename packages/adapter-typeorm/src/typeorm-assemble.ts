@@ -1991,7 +1991,7 @@ export class TypeormAssembler {
   private builder: Builder | null = null;
   private frame: Frame | null = null;
 
-  /** The workspace packages of the current version (its package.json inputs), by name, and their key. */
+  /** The workspace packages of the current version (the package.json files its locate step consulted), by name, and their key. */
   private packages: ReadonlyMap<string, readonly WorkspacePackage[]> = new Map();
   private packagesKey = '';
 
@@ -2045,17 +2045,19 @@ export class TypeormAssembler {
       cache.configFiles = list;
     }
     if (cache.version === 1 || pathsChanged) this.pathsKey = JSON.stringify([...files.keys()].sort());
-    // the workspace packages that bare imports resolve into: the version's package.json inputs
+    // the workspace packages that bare imports resolve into: the package.json files the version's
+    // locate step consulted (core hands over their facts: `readsConsulted`)
     let packagesChanged = false;
-    if (cache.version === 1 || changed.some(isPackageFile)) {
-      const list: WorkspacePackage[] = [];
-      for (const [p, f] of files) if (f.kind === 'package' && f.package) list.push({ ...f.package, file: p, dir: p === 'package.json' ? '' : p.slice(0, -'/package.json'.length) });
-      const key = JSON.stringify(list.map((w) => [w.file, w.name, w.entries, w.subpaths ?? []]));
-      if (key !== this.packagesKey) {
-        this.packagesKey = key;
-        this.packages = packagesByName(list);
-        packagesChanged = true;
-      }
+    const list: WorkspacePackage[] = [];
+    for (const f of input.consulted ?? []) {
+      const pkg = f.facts?.kind === 'package' ? f.facts.package : undefined;
+      if (pkg && isPackageFile(f.path)) list.push({ ...pkg, file: f.path, dir: f.path === 'package.json' ? '' : f.path.slice(0, -'/package.json'.length) });
+    }
+    const packagesKey = JSON.stringify(list.map((w) => [w.file, w.name, w.entries, w.subpaths ?? []]));
+    if (packagesKey !== this.packagesKey) {
+      this.packagesKey = packagesKey;
+      this.packages = packagesByName(list);
+      packagesChanged = true;
     }
     let b = this.builder;
     if (b) b.advance(files, delta);

@@ -458,11 +458,11 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
     }
   }
   for (const c of configFiles) included.add(c);
-  // a package that imports were resolved into: its package.json is read (the assembly resolves
-  // the same imports from it: an input, so that the output is the same whether or not this run
-  // located the commit), and so are the tsconfig files that map its compiled output to its sources
+  // a package that imports were resolved into: its package.json is consulted (the assembly
+  // resolves the same imports from it: core hands it the facts of the consulted files, see
+  // `readsConsulted`), and the tsconfig files that map its compiled output to its sources are read
   for (const pkg of usedPackages) {
-    included.add(pkg.file);
+    consulted.add(pkg.file);
     const v = tsconfigFor(pkg.file);
     if (v) for (const f of v.files) included.add(f);
   }

@@ -66,6 +66,13 @@ export interface SchemaAdapter<Facts = unknown> {
    */
   createSession?(options: AdapterOptionValues): AdapterSession<Facts>;
   /**
+   * Optional, for an adapter with `parseFile`: its assembly also reads the files its locate step
+   * consulted (`Located.consulted`: a package.json that says where an imported package's sources
+   * are, say). Core then parses them too and hands their facts over as `AssembleInput.consulted`,
+   * and an assembly's cache key holds them. They still make no version of their own.
+   */
+  readsConsulted?: boolean;
+  /**
    * Optional: write core's demo story (an ORM-neutral schema history) as this ORM's code, one
    * file set per step, for `schema-strata demo --adapter NAME`.
    */
@@ -239,6 +246,11 @@ export interface AssembleInput<Facts> {
   readonly files: readonly AssembleFile<Facts>[];
   /** Files that failed to parse and never had a good parse: their effects are missing. */
   readonly missing: readonly string[];
+  /**
+   * For an adapter with `readsConsulted`: the files its locate step consulted for this version,
+   * sorted by path, with their facts (those that could not be read or parsed left out).
+   */
+  readonly consulted?: readonly AssembleFile<Facts>[];
 }
 
 export type AssembleResult =

@@ -76,8 +76,20 @@ export async function schemaAt(req: {
         inputs.push({ path, blob, text: got.text });
       }
     }
+    // the facts of the files the locate step consulted, for an adapter whose assembly reads them
+    const consulted: AssembleFile<unknown>[] = [];
+    if (req.adapter.readsConsulted && req.adapter.parseFile) {
+      for (const path of [...new Set(located.consulted ?? [])].sort()) {
+        const blob = view.blob(path);
+        const got = blob ? await reader.read(blob) : undefined;
+        if (!blob || got?.kind !== 'text') continue;
+        const r = await req.adapter.parseFile({ path, blob, text: got.text }, options);
+        if (r.ok) consulted.push({ path, blob, facts: r.facts });
+      }
+    }
+    const input = { files: inputs, missing, ...(req.adapter.readsConsulted ? { consulted } : {}) };
     const session = req.adapter.createSession?.(options);
-    const result = session ? await session.assemble({ files: inputs, missing }) : await req.adapter.assemble({ files: inputs, missing }, options);
+    const result = session ? await session.assemble(input) : await req.adapter.assemble(input, options);
     diagnostics.push(...result.diagnostics);
     if ('failed' in result) {
       return { commit: info.head, files, tables: [], views: [], hash: '', meaningHash: '', diagnostics, failed: true };

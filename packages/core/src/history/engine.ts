@@ -715,6 +715,8 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
       const readDiagnostics: Diagnostic[] = [];
       let stale = false;
       let key: string;
+      /** The facts of the files the locate step consulted, for an adapter with `readsConsulted`. */
+      let consulted: AssembleFile<unknown>[] | undefined;
       /** The cached unit that stands for this version, once looked up (null: not yet). */
       let cached: CachedUnit | undefined | null = null;
       if (!adapter.parseFile) {
@@ -737,6 +739,10 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
         stale = anyStale;
         // the set of inputs: plain (path, blob) pairs, plus the stale ones with the blob whose facts they use
         const extra: string[] = [];
+        if (adapter.readsConsulted) {
+          consulted = await fileInputs.consulted(cand.consulted);
+          for (const f of cand.consulted) extra.push(`consulted\u0000${f.path}\u0000${f.blob}`);
+        }
         // (inputs marked stale are made only where `stale` is set)
         if (stale) for (const x of inputs) if (x.stale) extra.push(`stale\u0000${x.path}\u0000${x.blob}\u0000${lastGood.get(x.path)?.blob ?? ''}`);
         for (const m of missing) extra.push(`missing\u0000${m}`);
@@ -753,7 +759,7 @@ async function buildVersions(candidates: Candidate[], ctx: BuildContext) {
         const result =
           !adapter.parseFile && missing.length > 0
             ? ({ failed: true, diagnostics: [] } as AssembleResult)
-            : await assemble({ files: inputs, missing });
+            : await assemble({ files: inputs, missing, ...(consulted ? { consulted } : {}) });
         stats.assembled++;
         if ('failed' in result) {
           unit = { k: 's', key, failed: true, d: [...readDiagnostics, ...result.diagnostics] };
@@ -967,6 +973,21 @@ class FileInputs {
         () => undefined,
       ).catch(() => undefined),
     );
+  }
+
+  /**
+   * The facts of the files a locate step consulted (for an adapter with `readsConsulted`): parsed
+   * and cached by blob as the inputs are; those that cannot be read or parsed are left out, and
+   * their diagnostics too (a consulted file is not part of the schema).
+   */
+  async consulted(files: readonly FileRef[]): Promise<AssembleFile<unknown>[]> {
+    const out: AssembleFile<unknown>[] = [];
+    const ignored: Diagnostic[] = [];
+    for (const f of files) {
+      const r = await this.facts(f, ignored);
+      if (r && r.ok) out.push({ path: f.path, blob: f.blob, facts: r.facts });
+    }
+    return out;
   }
 
   /** A file's facts: cached by blob, else parsed ahead or read and parsed now (undefined when it cannot be read). */
