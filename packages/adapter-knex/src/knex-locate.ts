@@ -391,7 +391,10 @@ export async function locateKnex(tree: TreeView, req: LocateRequest): Promise<Lo
   let found: Found | null = null;
   let ambiguous: Located['ambiguous'];
   if (req.paths) {
-    const named = req.paths.filter((p) => tree.has(p) && isSourceFile(p) && !init.includes(p));
+    // Knex reads a migration directory's own files, not its subdirectories (FsMigrations lists
+    // each directory with readdir): files only a --path directory's subdirectory holds are left out
+    const nested = new Set(req.nested ?? []);
+    const named = req.paths.filter((p) => tree.has(p) && isSourceFile(p) && !init.includes(p) && !nested.has(p));
     found = { migrations: named.filter((p) => !isKnexfile(p)), diagnostics: [] };
     const kf = named.find(isKnexfile);
     if (kf) found.knexfile = kf;

@@ -198,6 +198,12 @@ export interface TreeView {
 export interface LocateRequest {
   /** User-given `--path` patterns (already expanded by core to the matching paths when given). */
   readonly paths?: readonly string[];
+  /**
+   * Of `paths`, those selected only because they lie in a subdirectory of a `--path` directory
+   * (no glob or file entry names them). An adapter whose ORM reads only a directory's own files,
+   * as Knex reads a migration directory, leaves them out. Absent when there are none.
+   */
+  readonly nested?: readonly string[];
   readonly options: AdapterOptionValues;
 }
 

@@ -120,15 +120,25 @@ export function matcher(globs: readonly string[]): (path: string) => boolean {
 }
 
 /**
- * The paths of a tree that `--path` entries select: those a glob matches, and each literal
- * entry as a file or as a directory (everything under it). Sorted.
+ * The paths of a tree that `--path` entries select (`paths`, sorted): those a glob matches, and
+ * each literal entry as a file or as a directory (everything under it). Of them, `nested`
+ * (sorted): those selected only because they lie in a subdirectory of a literal directory entry,
+ * which neither a glob nor a literal file names (see `LocateRequest.nested`).
  */
-export function selectUserPaths(view: TreeView, globMatch: (p: string) => boolean, literals: readonly string[]): string[] {
+export function userSelection(view: TreeView, globMatch: (p: string) => boolean, literals: readonly string[]): { paths: string[]; nested: string[] } {
   const selected = new Set<string>();
   for (const p of view.paths()) if (globMatch(p)) selected.add(p);
+  const deep = new Set<string>();
   for (const n of literals) {
     if (view.has(n)) selected.add(n);
-    for (const p of view.under(n)) selected.add(p);
+    for (const p of view.under(n)) {
+      if (selected.has(p)) continue;
+      if (p.lastIndexOf('/') > n.length) deep.add(p);
+      else selected.add(p);
+    }
   }
-  return [...selected].sort();
+  // a path nested under one directory entry may be a direct child of another, or named otherwise
+  for (const p of selected) deep.delete(p);
+  for (const p of deep) selected.add(p);
+  return { paths: [...selected].sort(), nested: [...deep].sort() };
 }

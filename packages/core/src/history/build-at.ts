@@ -1,6 +1,6 @@
 import type { AdapterOptionValues, AssembleFile, SchemaAdapter } from '../adapter/api.js';
 import { BlobReader } from '../git/blob-reader.js';
-import { isGlob, matcher, selectUserPaths } from '../git/tree-state.js';
+import { isGlob, matcher, userSelection } from '../git/tree-state.js';
 import { openRepository } from '../git/repository.js';
 import type { Diagnostic } from '../model/types.js';
 import { UsageError, EXIT } from '../util/errors.js';
@@ -43,8 +43,8 @@ export async function schemaAt(req: {
     const view = tree.view(info.head, reader);
     let located;
     if (userPaths.length > 0) {
-      const selected = selectUserPaths(view, matcher(userPaths.filter(isGlob)), userPaths.filter((x) => !isGlob(x)));
-      located = await req.adapter.locate(view, { paths: selected, options });
+      const sel = userSelection(view, matcher(userPaths.filter(isGlob)), userPaths.filter((x) => !isGlob(x)));
+      located = await req.adapter.locate(view, { paths: sel.paths, ...(sel.nested.length > 0 ? { nested: sel.nested } : {}), options });
     } else {
       located = await req.adapter.locate(view, { options });
     }

@@ -13,7 +13,7 @@ import { diffSnapshots } from '../changes/diff-snapshots.js';
 import { BlobReader } from '../git/blob-reader.js';
 import { logStream, type LoggedCommit } from '../git/log-pass.js';
 import { firstParentLine, openRepository, resolveRevisions } from '../git/repository.js';
-import { isGlob, isRegular, logSelection, matcher, selectUserPaths, TreeState } from '../git/tree-state.js';
+import { isGlob, isRegular, logSelection, matcher, TreeState, userSelection } from '../git/tree-state.js';
 import { canonicalJson } from '../model/canonical.js';
 import type { Diagnostic, Table, ViewRef } from '../model/types.js';
 import { UsageError, EXIT } from '../util/errors.js';
@@ -327,7 +327,8 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
       let located: Located;
       if (userPaths.length > 0) {
         const names = lineage ? lineage[i]! : [];
-        located = await adapter.locate(view, { paths: selectUserPaths(view, userMatch, names), options });
+        const sel = userSelection(view, userMatch, names);
+        located = await adapter.locate(view, { paths: sel.paths, ...(sel.nested.length > 0 ? { nested: sel.nested } : {}), options });
       } else {
         located = await adapter.locate(view, { options });
       }
