@@ -11,7 +11,7 @@ import {
 import {
   exportSignature, get, isArrE, isFnE, isObjE, isSymE, isUnk, Project, str, symName, textOf, type E, type Sym, type Tracked, type VersionDelta,
 } from './typeorm-evaluate.js';
-import { globMatcher, packagesByName, type WorkspacePackage } from './typeorm-modules.js';
+import { globMatcher, packagesByName, workspacePackage, type WorkspacePackage } from './typeorm-modules.js';
 import { namingRules, shorten, type NamingRules } from './typeorm-naming.js';
 import { entityGlobs } from './typeorm-locate.js';
 import type { ClassFact, ConfigFact, TypeormFileFacts } from './typeorm-parse.js';
@@ -2050,8 +2050,9 @@ export class TypeormAssembler {
     let packagesChanged = false;
     const list: WorkspacePackage[] = [];
     for (const f of input.consulted ?? []) {
+      // (facts of kind `package` are those of a package.json: see parseTypeormFile)
       const pkg = f.facts?.kind === 'package' ? f.facts.package : undefined;
-      if (pkg && isPackageFile(f.path)) list.push({ ...pkg, file: f.path, dir: f.path === 'package.json' ? '' : f.path.slice(0, -'/package.json'.length) });
+      if (pkg) list.push(workspacePackage(f.path, pkg));
     }
     const packagesKey = JSON.stringify(list.map((w) => [w.file, w.name, w.entries, w.subpaths ?? []]));
     if (packagesKey !== this.packagesKey) {
@@ -2114,8 +2115,3 @@ export function assembleTypeorm(input: AssembleInput<TypeormFileFacts>, options:
 }
 
 export { schemaKey };
-
-/** Whether a path is a package.json (of a workspace package, when it is among the inputs). */
-function isPackageFile(p: string): boolean {
-  return p === 'package.json' || p.endsWith('/package.json');
-}

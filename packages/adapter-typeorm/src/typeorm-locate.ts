@@ -2,7 +2,7 @@ import { posix } from 'node:path';
 import { BlobMemo, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
 import { readSettings, TYPEORM_DECORATORS } from './typeorm-config.js';
 import {
-  globMatcher, isDeclarationFile, ModuleResolver, nearestTsconfig, packagesByName, parsePackageJson, sourceGlobs, SOURCE_FILE, tsconfigView,
+  globMatcher, isDeclarationFile, ModuleResolver, nearestTsconfig, packagesByName, parsePackageJson, sourceGlobs, SOURCE_FILE, tsconfigView, workspacePackage,
   type PackageFact, type TsconfigView, type WorkspacePackage,
 } from './typeorm-modules.js';
 
@@ -334,7 +334,7 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
   for (const p of allList) {
     if (!isPackageJson(p)) continue;
     const fact = await packageMemo.of(tree, p, (text) => (text === undefined ? null : parsePackageJson(text)));
-    if (fact) packages.push({ ...fact, file: p, dir: p === 'package.json' ? '' : p.slice(0, -'/package.json'.length) });
+    if (fact) packages.push(workspacePackage(p, fact));
   }
   const byName = packagesByName(packages);
   const usedPackages = new Set<WorkspacePackage>();

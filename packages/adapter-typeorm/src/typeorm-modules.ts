@@ -131,6 +131,11 @@ export interface PackageFact {
   subpaths?: Array<[string, string]>;
 }
 
+/** The workspace package of a package.json at `file` that says `fact`. */
+export function workspacePackage(file: string, fact: PackageFact): WorkspacePackage {
+  return { ...fact, file, dir: file === 'package.json' ? '' : file.slice(0, -'/package.json'.length) };
+}
+
 /** A package of the repository (a workspace package): where its package.json is and what it says. */
 export interface WorkspacePackage extends PackageFact {
   /** The package.json's path. */
