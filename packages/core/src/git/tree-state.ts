@@ -122,10 +122,11 @@ export function matcher(globs: readonly string[]): (path: string) => boolean {
 /**
  * The paths of a tree that `--path` entries select (`paths`, sorted): those a glob matches, and
  * each literal entry as a file or as a directory (everything under it). Of them, `nested`
- * (sorted): those selected only because they lie in a subdirectory of a literal directory entry,
- * which neither a glob nor a literal file names (see `LocateRequest.nested`).
+ * (sorted, present when there are any): those selected only because they lie in a subdirectory
+ * of a literal directory entry, which neither a glob nor a literal file names. The fields of
+ * `LocateRequest` of those names.
  */
-export function userSelection(view: TreeView, globMatch: (p: string) => boolean, literals: readonly string[]): { paths: string[]; nested: string[] } {
+export function userSelection(view: TreeView, globMatch: (p: string) => boolean, literals: readonly string[]): { paths: string[]; nested?: string[] } {
   const selected = new Set<string>();
   for (const p of view.paths()) if (globMatch(p)) selected.add(p);
   const deep = new Set<string>();
@@ -140,5 +141,5 @@ export function userSelection(view: TreeView, globMatch: (p: string) => boolean,
   // a path nested under one directory entry may be a direct child of another, or named otherwise
   for (const p of selected) deep.delete(p);
   for (const p of deep) selected.add(p);
-  return { paths: [...selected].sort(), nested: [...deep].sort() };
+  return { paths: [...selected].sort(), ...(deep.size > 0 ? { nested: [...deep].sort() } : {}) };
 }

@@ -43,8 +43,7 @@ export async function schemaAt(req: {
     const view = tree.view(info.head, reader);
     let located;
     if (userPaths.length > 0) {
-      const sel = userSelection(view, matcher(userPaths.filter(isGlob)), userPaths.filter((x) => !isGlob(x)));
-      located = await req.adapter.locate(view, { paths: sel.paths, ...(sel.nested.length > 0 ? { nested: sel.nested } : {}), options });
+      located = await req.adapter.locate(view, { ...userSelection(view, matcher(userPaths.filter(isGlob)), userPaths.filter((x) => !isGlob(x))), options });
     } else {
       located = await req.adapter.locate(view, { options });
     }

@@ -327,8 +327,7 @@ export async function extractHistory(req: ExtractRequest): Promise<History> {
       let located: Located;
       if (userPaths.length > 0) {
         const names = lineage ? lineage[i]! : [];
-        const sel = userSelection(view, userMatch, names);
-        located = await adapter.locate(view, { paths: sel.paths, ...(sel.nested.length > 0 ? { nested: sel.nested } : {}), options });
+        located = await adapter.locate(view, { ...userSelection(view, userMatch, names), options });
       } else {
         located = await adapter.locate(view, { options });
       }

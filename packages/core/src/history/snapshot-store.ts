@@ -1,4 +1,4 @@
-import { canonicalJson, canonicalOrder, contentHash, hexListJson, isHex, snapshotHashOfJson, tableMeaning, tableStorageKey, viewMeaning } from '../model/canonical.js';
+import { canonicalJson, canonicalOrder, contentHash, hexListJson, isHex, snapshotHashOfJson, tableMeaning, tableStorageKey, viewsJson } from '../model/canonical.js';
 import { findNearby, type NearbyWalk } from '../util/nearby.js';
 import type { Column, Origin, SnapshotInput, Table, ViewRef } from '../model/types.js';
 
@@ -319,9 +319,10 @@ export class SnapshotStore {
     }
     // the texts JSON.stringify writes for the lists, by a join while every hash is hex digits
     const listJson = this.hexHashes ? hexListJson : JSON.stringify;
+    const v = viewsJson(views);
     return {
-      hash: snapshotHashOfJson(listJson(hashes), views),
-      meaningHash: contentHash(`${listJson(meanings)}|${views.length ? canonicalJson(views.map(viewMeaning)) : ''}`),
+      hash: snapshotHashOfJson(listJson(hashes), v),
+      meaningHash: snapshotHashOfJson(listJson(meanings), v),
       tables,
       views,
     };

@@ -186,12 +186,17 @@ export function viewMeaning(v: ViewRef): unknown {
 
 /** Hash of a snapshot from the hashes of its tables and its views. */
 export function snapshotHashOf(tableHashes: string[], views: ViewRef[]): string {
-  return snapshotHashOfJson(tableHashes.every(isHex) ? hexListJson(tableHashes) : JSON.stringify(tableHashes), views);
+  return snapshotHashOfJson(JSON.stringify(tableHashes), viewsJson(views));
 }
 
-/** `snapshotHashOf` from the JSON text of the list of table hashes. */
-export function snapshotHashOfJson(tableHashesJson: string, views: ViewRef[]): string {
-  return contentHash(`${tableHashesJson}|${views.length ? canonicalJson(views.map(viewMeaning)) : ''}`);
+/** The part of a snapshot's hashes its views give: their canonical JSON, or nothing without views. */
+export function viewsJson(views: ViewRef[]): string {
+  return views.length ? canonicalJson(views.map(viewMeaning)) : '';
+}
+
+/** `snapshotHashOf` from the JSON text of the list of table hashes and `viewsJson` of the views. */
+export function snapshotHashOfJson(tableHashesJson: string, viewsText: string): string {
+  return contentHash(`${tableHashesJson}|${viewsText}`);
 }
 
 const HEX = /^[0-9a-f]*$/;
