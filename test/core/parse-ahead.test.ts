@@ -10,7 +10,7 @@ import { extractHistory, serialiseDocument, toDocument, GENERATOR, type ExtractR
 import knexAdapter from '@schema-strata/adapter-knex';
 import typeormAdapter from '@schema-strata/adapter-typeorm';
 import { day, git, makeRepo, tempDir } from '../helpers/repo.js';
-import { knexMigration as mig, knexStart, typeormEntity, typeormSteps } from '../helpers/sources.js';
+import { knexMigration as mig, knexSteps, typeormEntity, typeormSteps } from '../helpers/sources.js';
 
 const tmp = tempDir();
 afterAll(() => tmp.cleanup());
@@ -35,16 +35,11 @@ function recording(adapter: SchemaAdapter, log: string[]): SchemaAdapter {
 
 describe('parsing ahead of the versions', () => {
   it('gives the bytes of a build that parses each file in its turn (Knex)', async () => {
-    const files: ScriptedCommit['files'][] = [knexStart()];
-    for (let i = 1; i <= 120; i++) {
-      const step: ScriptedCommit['files'] = { [`db/migrations/${String(i).padStart(3, '0')}_loans${i}.js`]: mig(`loans${i}`) };
-      if (i % 17 === 0) step['db/migrations/000_tools.js'] = mig('tools', ` t.integer('n${i}');`);
-      if (i % 23 === 0) step[`db/migrations/${String(i - 5).padStart(3, '0')}_loans${i - 5}.js`] = null;
+    const files = knexSteps(120, 'loans', (i, step) => {
       // a syntax error, mended two commits later
       if (i === 50) step['db/migrations/000_tools.js'] = 'exports.up = async (knex) => { await knex.schema.createTable(\n';
       if (i === 52) step['db/migrations/000_tools.js'] = mig('tools', " t.boolean('lent');");
-      files.push(step);
-    }
+    });
     const commits: ScriptedCommit[] = files.map((f, i) => ({ date: day(i), message: `step ${i}`, files: f }));
     const repo = await makeRepo(tmp.dir, 'knex', commits);
     const ahead: string[] = [];

@@ -9,7 +9,7 @@ import { extractHistory, serialiseDocument, toDocument, GENERATOR, type ExtractR
 import knexAdapter from '@schema-strata/adapter-knex';
 import typeormAdapter from '@schema-strata/adapter-typeorm';
 import { day, git, makeRepo, tempDir } from '../helpers/repo.js';
-import { knexMigration as mig, knexStart, typeormSteps } from '../helpers/sources.js';
+import { knexMigration as mig, knexSteps, typeormSteps } from '../helpers/sources.js';
 
 const tmp = tempDir();
 afterAll(() => tmp.cleanup());
@@ -30,14 +30,9 @@ const doc = async (req: ExtractRequest): Promise<string> => serialiseDocument(to
 
 describe('reading ahead during the walk', () => {
   it('gives the bytes of a walk without it (Knex: appended, edited, deleted and renamed migrations)', async () => {
-    const files: ScriptedCommit['files'][] = [knexStart()];
-    for (let i = 1; i <= 150; i++) {
-      const step: ScriptedCommit['files'] = { [`db/migrations/${String(i).padStart(3, '0')}_t${i}.js`]: mig(`t${i}`) };
-      if (i % 17 === 0) step['db/migrations/000_tools.js'] = mig('tools', ` t.integer('n${i}');`);
-      if (i % 23 === 0) step[`db/migrations/${String(i - 5).padStart(3, '0')}_t${i - 5}.js`] = null;
+    const files = knexSteps(150, 't', (i, step) => {
       if (i % 31 === 0) step['src/app.js'] = `exports.v = ${i};\n`;
-      files.push(step);
-    }
+    });
     const commits: ScriptedCommit[] = files.map((f, i) => ({ date: day(i), message: `step ${i}`, files: f }));
     // a migration renamed (its place in the order kept)
     commits.push({ date: day(files.length), message: 'rename', files: { 'db/migrations/010_t10.js': null, 'db/migrations/010_t10_renamed.js': mig('t10') } });

@@ -17,6 +17,24 @@ export const knexStart = (): ScriptedCommit['files'] => ({
 });
 
 /**
+ * A Knex history of `count` steps after `knexStart()`: each step appends the migration
+ * `NNN_<table><i>.js`, every 17th edits the tools migration, every 23rd deletes the migration of
+ * five steps before; `step` may change each step's files.
+ */
+export function knexSteps(count: number, table: string, step: (i: number, files: ScriptedCommit['files']) => void = () => undefined): ScriptedCommit['files'][] {
+  const name = (i: number): string => `db/migrations/${String(i).padStart(3, '0')}_${table}${i}.js`;
+  const files: ScriptedCommit['files'][] = [knexStart()];
+  for (let i = 1; i <= count; i++) {
+    const s: ScriptedCommit['files'] = { [name(i)]: knexMigration(`${table}${i}`) };
+    if (i % 17 === 0) s['db/migrations/000_tools.js'] = knexMigration('tools', ` t.integer('n${i}');`);
+    if (i % 23 === 0) s[name(i - 5)] = null;
+    step(i, s);
+    files.push(s);
+  }
+  return files;
+}
+
+/**
  * A TypeORM history of 80 steps after a first commit: Tool and Member edited in turns, a service
  * file that is no entity changed every third step, Loan added at 40 and removed at 70; `step`
  * may change each step's files.
