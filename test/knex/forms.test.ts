@@ -147,6 +147,13 @@ describe('ways of writing a Knex migration (oracle: Knex 3 on better-sqlite3)', 
     const r = new KnexSession(knexOptions({})).assemble({ files, missing: [] });
     expect('snapshot' in r && r.snapshot.tables).toEqual([]);
     expect(r.diagnostics.map((d) => d.code)).toContain('knex/no-up');
+    // the message says where the up() is, and why Knex does not take it
+    expect(r.diagnostics.find((d) => d.code === 'knex/no-up')!.message).toMatch(/the default export holds one, but Knex takes up\(\) from the module itself/);
+    // a module with no up() at all is told apart (Knex refuses it too)
+    const bare = [['knexfile.js', KNEXFILE], ['migrations/001.mjs', 'export const down = async () => {};\n']] as const;
+    await expect(runKnex(new Map(bare), { engine: 'sqlite', environment: 'development' })).rejects.toThrow(/must have both an up and down function/);
+    const b = new KnexSession(knexOptions({})).assemble({ files: bare.map(([path, t]) => ({ path, blob: path, facts: (parseKnexSource(t) as { facts: KnexFacts }).facts })), missing: [] });
+    expect(b.diagnostics.find((d) => d.code === 'knex/no-up')!.message).toBe('no up() function is exported: Knex would refuse this migration; it is left out');
   });
 
   it('reports what it leaves out', async () => {

@@ -106,13 +106,20 @@ class ClientPGlite extends ClientPG {
     return (this as unknown as { config: { connection: { pglite: PGlite } } }).config.connection.pglite;
   }
   async acquireRawConnection(): Promise<PGlite> {
-    return this._acquireOnlyConnection();
+    const connection = await this._acquireOnlyConnection();
+    await this.setSchemaSearchPath(connection);
+    return connection;
   }
   async destroyRawConnection(): Promise<void> {}
   async checkVersion(): Promise<string> {
     return '17.0';
   }
-  async setSchemaSearchPath(): Promise<boolean> {
+  /** Knex's own statement for a configured `searchPath` (lib/dialects/postgres: setSchemaSearchPath), run through PGlite. */
+  async setSchemaSearchPath(connection: PGlite): Promise<boolean> {
+    const path = (this as unknown as { searchPath?: string | string[] }).searchPath;
+    if (!path) return true;
+    const list = (Array.isArray(path) ? path : [path]).map((s) => `"${s.replace(/"/g, '""')}"`).join(',');
+    await connection.exec(`set search_path to ${list}`);
     return true;
   }
   validateConnection(): boolean {
@@ -150,6 +157,8 @@ export interface RunOptions {
    * lib/client.js); the run itself passes Knex a client class, which would be there instead.
    */
   clientName?: string;
+  /** PGlite: the connection's `searchPath`, as a knexfile configures it. */
+  searchPath?: string[];
 }
 
 /**
@@ -192,7 +201,7 @@ export class KnexProject {
     const knex =
       opts.engine === 'sqlite'
         ? Knex({ client: 'better-sqlite3', connection: { filename: join(src, '..', 'oracle.sqlite3') }, useNullAsDefault: true, migrations })
-        : Knex({ client: ClientPGlite as never, connection: { pglite: opts.pglite } as never, pool: { min: 1, max: 1 }, migrations });
+        : Knex({ client: ClientPGlite as never, connection: { pglite: opts.pglite } as never, pool: { min: 1, max: 1 }, migrations, ...(opts.searchPath ? { searchPath: opts.searchPath } : {}) });
     if (opts.clientName !== undefined) (knex.client as { config: { client: unknown } }).config.client = opts.clientName;
     const project = new KnexProject(src, out, knex, opts);
     try {

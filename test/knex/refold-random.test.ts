@@ -32,7 +32,9 @@ function body(rnd: () => number): (variant: number) => string {
   if (r < 0.78) return (v) => `await knex.schema.renameTable('${t}', '${v % 2 ? other : t + '_old'}');`;
   if (r < 0.85) return () => `await knex.schema.dropTableIfExists('${t}');`;
   if (r < 0.92) return (v) => `if (await knex.schema.hasTable('${t}')) { await knex.schema.alterTable('${other}', (t) => { t.boolean('has_${t}_${v}'); }); }`;
-  return (v) => `await knex.schema.createViewOrReplace('${t}_view_${v % 2}', (view) => { view.as(knex('${t}').select('id')); });`;
+  if (r < 0.96) return (v) => `await knex.schema.createViewOrReplace('${t}_view_${v % 2}', (view) => { view.as(knex('${t}').select('id')); });`;
+  // raw SQL is not interpreted, but the tables it creates are named by later diagnostics
+  return (v) => `await knex.raw('CREATE TABLE ${v % 2 ? t : other} (id integer)');`;
 }
 
 interface Slot {

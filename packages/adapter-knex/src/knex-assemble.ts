@@ -30,6 +30,8 @@ export interface VersionPlan {
   dialect: Dialect;
   /** What `knex.client` holds for the run's client (--knex-client, else the knexfile's), when known. */
   client?: KnexClientInfo;
+  /** The schema unqualified names resolve to, when not the dialect's default: --knex-schema, else the knexfile's searchPath (PostgreSQL). */
+  schema?: string;
   entries: PlanEntry[];
   files: FileLookup;
   diagnostics: Diagnostic[];
@@ -213,6 +215,8 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
     else diagnostics.push({ severity: 'info', code: 'knex/client-unknown', file: knexfile!.path, message: `client ${settings.client} is not one schema-strata maps; types follow PostgreSQL (set --knex-client)` });
   }
   const client = options.clientName !== undefined ? knexClient(options.clientName) : knexClient(settings?.client, settings?.clientKey);
+  // (only Knex's PostgreSQL client applies a searchPath)
+  const schema = options.schema ?? (dialect === 'postgresql' ? settings?.searchPath : undefined);
 
   // the migrations and the directory each comes from
   // `at`: the file's position in the input (-1: a missing file; undefined: look it up by path)
@@ -299,7 +303,7 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
     return { path, role, ...(file ? { file } : {}), key: `${role}|${path}|${own}|${file ? depKey(path) : ''}` };
   };
   const entries = [...init.map((p) => entry(p, 'init')), ...found.map((f) => entry(f.path, 'migration', f.at))];
-  const plan: VersionPlan = { dialect, ...(client ? { client } : {}), entries, files, diagnostics };
+  const plan: VersionPlan = { dialect, ...(client ? { client } : {}), ...(schema ? { schema } : {}), entries, files, diagnostics };
   if (settings && !several && !fromSources && input.missing.length === 0 && input.files.every((f) => f.facts && !f.stale && f.facts.imports.length === 0)) {
     plan.appendable = { dir: settings.directories[0]!, loadExtensions: settings.loadExtensions, lastName: found.length > 0 ? found[found.length - 1]!.name : null };
   }
@@ -351,6 +355,7 @@ export function appendedPlan(last: VersionPlan, lastFiles: AssembleInput<KnexFac
   return {
     dialect: last.dialect,
     ...(last.client ? { client: last.client } : {}),
+    ...(last.schema ? { schema: last.schema } : {}),
     entries: [...last.entries, ...entries],
     files: new FileLookup(files, NO_PATHS),
     diagnostics: last.diagnostics,
@@ -376,7 +381,7 @@ interface Step {
   upTo: { diagnostics: Diagnostic[]; counters: VersionCounters };
 }
 
-const PARTS = ['tables', 'views', 'enums', 'moved'] as const;
+const PARTS = ['tables', 'views', 'enums', 'moved', 'rawTables'] as const;
 type Part = (typeof PARTS)[number];
 type Changed = Record<Part, Set<string>>;
 
@@ -487,6 +492,8 @@ export class KnexSession implements AdapterSession<KnexFacts> {
   private dialect: Dialect | null = null;
   /** The client the steps were replayed for (null before the first version). */
   private client: KnexClientInfo | undefined | null = null;
+  /** The schema of unqualified names the steps were replayed for. */
+  private schema: string | undefined = undefined;
   /** Migrations replayed by this session (for tests and benchmarks). */
   replayed = 0;
   /** Migrations of a refold taken over from the previous fold without replaying them. */
@@ -512,10 +519,11 @@ export class KnexSession implements AdapterSession<KnexFacts> {
   assemble(input: AssembleInput<KnexFacts>): AssembleResult {
     const plan = this.plan(input);
     // (knexClient gives one object per client: a different object is a different client)
-    if (plan.dialect !== this.dialect || plan.client !== this.client) {
+    if (plan.dialect !== this.dialect || plan.client !== this.client || plan.schema !== this.schema) {
       this.steps = [];
       this.dialect = plan.dialect;
       this.client = plan.client;
+      this.schema = plan.schema;
     }
     const steps = this.steps;
     let i = 0;
@@ -531,7 +539,7 @@ export class KnexSession implements AdapterSession<KnexFacts> {
     // `base`: the old fold's state at the point the new fold has reached; `changed`: per part of
     // the state, the keys whose values may differ between the two (a superset of the differences)
     let base = state;
-    const changed: Changed = { tables: new Set(), views: new Set(), enums: new Set(), moved: new Set() };
+    const changed: Changed = { tables: new Set(), views: new Set(), enums: new Set(), moved: new Set(), rawTables: new Set() };
     let next = 0;
     let byKey: Map<string, number> | null = null;
     for (let j = i; j < plan.entries.length; j++) {
@@ -561,7 +569,7 @@ export class KnexSession implements AdapterSession<KnexFacts> {
           continue;
         }
       }
-      const replay = new Replay(state, plan.dialect, plan.files, plan.client);
+      const replay = new Replay(state, plan.dialect, plan.files, plan.client, plan.schema);
       if (e.file) {
         replay.runFile(e.file, e.role);
         this.replayed++;

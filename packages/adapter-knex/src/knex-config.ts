@@ -32,6 +32,12 @@ export const KNEX_OPTIONS: readonly AdapterOption[] = Object.freeze([
     choices: ['auto', ...CLIENT_CHOICES],
     default: 'auto',
   },
+  {
+    flag: 'knex-schema',
+    description:
+      "database schema that unqualified table names resolve to, as the connection's searchPath sets it (its first schema): tables in it get no namespace, so that code moving between withSchema(NAME) and unqualified names keeps their ids; default: the first schema of the knexfile's searchPath (PostgreSQL), else the client's own (public, dbo, main)",
+    type: 'string',
+  },
 ]);
 
 export interface KnexOptions {
@@ -42,6 +48,8 @@ export interface KnexOptions {
   client?: Dialect;
   /** The client name --knex-client gives, as a knexfile would (decides conditions on `knex.client`). */
   clientName?: string;
+  /** The schema unqualified names resolve to (--knex-schema), when not the client's default. */
+  schema?: string;
 }
 
 /** The adapter's options from the values core passes (CLI flags or the configuration file). */
@@ -50,10 +58,12 @@ export function knexOptions(values: AdapterOptionValues): KnexOptions {
   const order = values['knex-order'];
   const env = values['knex-environment'];
   const client = values['knex-client'];
+  const schema = values['knex-schema'];
   return {
     init: Array.isArray(init) ? init : typeof init === 'string' && init ? [init] : [],
     order: order === 'natural' ? 'natural' : 'name',
     ...(typeof env === 'string' && env ? { environment: env } : {}),
     ...(typeof client === 'string' && CLIENT_CHOICES.includes(client) ? { client: dialectOf(client)!, clientName: client } : {}),
+    ...(typeof schema === 'string' && schema ? { schema } : {}),
   };
 }

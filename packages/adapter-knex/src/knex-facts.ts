@@ -40,6 +40,8 @@ export type Val =
   | { join: Val[] }
   /** `process.env.NAME`: not known statically. */
   | { env: string }
+  /** The numbers a counted `for` loop goes through (`for (let i = from; i < to; i += step)`; `<=` when `inclusive`). */
+  | { range: { from: Val; to: Val; step: number; inclusive?: true } }
   /** `undefined`. */
   | { undef: true }
   /** Not known statically: the source text. */
@@ -108,7 +110,7 @@ export type Stmt =
    */
   | { k: 'chain'; chain: Chain; line: number; lazy?: true }
   | { k: 'if'; cond: Cond; then: Stmt[]; else: Stmt[]; line: number }
-  /** A loop over the elements of a value (`for...of`, `forEach`, `map` inside `Promise.all`). */
+  /** A loop over the elements of a value (`for...of`, `forEach`, `map` inside `Promise.all`, a counted `for` over a `range`). */
   | { k: 'each'; bind: Param[]; over: Val; body: Stmt[]; line: number; /** a callback (forEach, map): its `return` ends one round only */ fn?: true }
   /** The body of a callback run in place (`then`, an immediately invoked function): its `return` ends only the block. */
   | { k: 'block'; body: Stmt[]; line: number }

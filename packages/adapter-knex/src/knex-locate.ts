@@ -43,6 +43,11 @@ export interface KnexfileSettings {
   sortDirsSeparately: boolean;
   tableName: string;
   schemaName?: string;
+  /**
+   * The first schema of the connection's `searchPath` (Knex's PostgreSQL client sets it on every
+   * connection it opens: lib/dialects/postgres, setSchemaSearchPath; a string is one schema name).
+   */
+  searchPath?: string;
   /** Parts of the knexfile that could not be read statically. */
   notes: string[];
 }
@@ -140,6 +145,10 @@ export function knexfileSettings(config: Val | undefined, knexfilePath: string, 
     settings.clientKey = obj['client'] === client ? 'client' : 'dialect';
   }
   else if (client === UNKNOWN) notes.push('the client is not known statically');
+  const sp = obj['searchPath'];
+  const firstSchema = Array.isArray(sp) ? sp[0] : sp;
+  if (typeof firstSchema === 'string' && firstSchema) settings.searchPath = firstSchema;
+  else if (firstSchema === UNKNOWN) notes.push('the searchPath is not known statically; unqualified names are taken as in the default schema (set --knex-schema)');
   const mig = obj['migrations'];
   const m = mig && typeof mig === 'object' && !Array.isArray(mig) ? mig : {};
   if (mig === UNKNOWN) notes.push('migrations settings are not known statically; ./migrations is assumed');

@@ -215,6 +215,8 @@ class FileCompiler {
       out.push({ k: 'break', line: this.line(st) });
     } else if (t.isContinueStatement(st) && !st.label) {
       out.push({ k: 'continue', line: this.line(st) });
+    } else if (t.isForStatement(st) && this.countedLoop(st, scope, out)) {
+      // replayed over the range of its counter
     } else if (t.isForStatement(st) || t.isWhileStatement(st) || t.isDoStatement(st)) {
       const inner: Stmt[] = [];
       // such a loop is not followed; the replay says so when its body may change the schema
@@ -223,6 +225,58 @@ class FileCompiler {
     } else if (t.isFunctionDeclaration(st) || t.isEmptyStatement(st) || t.isThrowStatement(st)) {
       // hoisted above / nothing to replay
     } else if (t.isLabeledStatement(st)) this.statement(st.statement, scope, out);
+  }
+
+  /**
+   * A counted loop, `for (let i = A; i < B; i++)` (also `<=`, `B > i`, `++i`, `i += n`, `i = i + n`
+   * with n a positive literal; the counter assigned nowhere in the body): a loop over the range of
+   * its counter, whose bounds the replay resolves. Any other `for` is left to the caller.
+   */
+  private countedLoop(st: import('ts-morph').ts.ForStatement, scope: Scope, out: Stmt[]): boolean {
+    const t = this.t;
+    const K = t.SyntaxKind;
+    const init = st.initializer;
+    if (!init || !t.isVariableDeclarationList(init) || init.declarations.length !== 1) return false;
+    const decl = init.declarations[0]!;
+    if (!t.isIdentifier(decl.name) || !decl.initializer) return false;
+    const name = decl.name.text;
+    const isCounter = (e: Node): boolean => t.isIdentifier(e) && e.text === name;
+    const c = st.condition ? this.unwrap(st.condition) : undefined;
+    if (!c || !t.isBinaryExpression(c)) return false;
+    const op = c.operatorToken.kind;
+    let to: Expression;
+    if (isCounter(c.left) && (op === K.LessThanToken || op === K.LessThanEqualsToken)) to = c.right;
+    else if (isCounter(c.right) && (op === K.GreaterThanToken || op === K.GreaterThanEqualsToken)) to = c.left;
+    else return false;
+    const inclusive = op === K.LessThanEqualsToken || op === K.GreaterThanEqualsToken;
+    const inc = st.incrementor ? this.unwrap(st.incrementor) : undefined;
+    let step: number | undefined;
+    if (inc && (t.isPostfixUnaryExpression(inc) || t.isPrefixUnaryExpression(inc)) && inc.operator === K.PlusPlusToken && isCounter(inc.operand)) step = 1;
+    else if (inc && t.isBinaryExpression(inc) && isCounter(inc.left)) {
+      const r = this.unwrap(inc.right);
+      if (inc.operatorToken.kind === K.PlusEqualsToken && t.isNumericLiteral(r)) step = Number(r.text);
+      else if (inc.operatorToken.kind === K.EqualsToken && t.isBinaryExpression(r) && r.operatorToken.kind === K.PlusToken && isCounter(r.left) && t.isNumericLiteral(r.right)) {
+        step = Number(r.right.text);
+      }
+    }
+    if (!step || !(step > 0)) return false;
+    // a counter the body assigns is no plain range
+    let assigned = false;
+    const visit = (n: Node): void => {
+      if (assigned) return;
+      if ((t.isPostfixUnaryExpression(n) || t.isPrefixUnaryExpression(n)) && (n.operator === K.PlusPlusToken || n.operator === K.MinusMinusToken) && isCounter(n.operand)) assigned = true;
+      else if (t.isBinaryExpression(n) && n.operatorToken.kind >= K.FirstAssignment && n.operatorToken.kind <= K.LastAssignment && isCounter(n.left)) assigned = true;
+      else n.forEachChild(visit);
+    };
+    visit(st.statement);
+    if (assigned) return false;
+    const inner = new Scope(scope);
+    inner.set(name, { kind: 'local' });
+    const body: Stmt[] = [];
+    this.statement(st.statement, inner, body);
+    const range = { from: this.val(decl.initializer, scope), to: this.val(to, scope), step, ...(inclusive ? { inclusive: true as const } : {}) };
+    if (body.length > 0) out.push({ k: 'each', bind: [name], over: { range }, body, line: this.line(st) });
+    return true;
   }
 
   private loopBindings(init: import('ts-morph').ts.ForInitializer, scope: Scope): Param[] {

@@ -1,6 +1,7 @@
 import type { Diagnostic, GeneratedKind, NeutralType, Origin, ReferentialAction } from '@schema-strata/core/extract';
 import { tableId } from '@schema-strata/core/extract';
 import type { Arg, Chain, Cond, FnIR, KnexFacts, Param, Root, Stmt, Val } from './knex-facts.js';
+import { isObj } from './knex-parse.js';
 import { PMap } from './knex-pmap.js';
 import { TrackedMap, type MapAccess } from './knex-track.js';
 import {
@@ -84,12 +85,18 @@ export interface SchemaState {
   enums: ReadonlyMap<string, string[]>;
   /** Ids of live tables that differ from their name (renamed tables): id -> key. */
   moved: ReadonlyMap<string, string>;
+  /**
+   * Tables that raw SQL creates (`CREATE TABLE`, `ALTER TABLE ... RENAME TO`), by qualified name:
+   * the place of that statement. Raw SQL is not interpreted; this only tells a builder call on
+   * such a table why the replay does not have it.
+   */
+  rawTables: ReadonlyMap<string, string>;
 }
 
 /** The keys of each part of the state that a migration read and wrote. */
 export type StateAccess = { readonly [P in keyof SchemaState]: MapAccess };
 
-export const EMPTY_STATE: SchemaState = { tables: new PMap(), views: new Map(), enums: new Map(), moved: new Map() };
+export const EMPTY_STATE: SchemaState = { tables: new PMap(), views: new Map(), enums: new Map(), moved: new Map(), rawTables: new Map() };
 
 export interface ReplayCounters {
   rawStatements: number;
@@ -230,6 +237,8 @@ const TABLE_STATEMENTS = new Set([
   'renameColumn', 'dropColumn', 'dropColumns', 'setNullable', 'dropNullable',
 ]);
 const MAX_DEPTH = 40;
+/** The most rounds a counted loop is replayed for; a longer one is treated as not known statically. */
+const MAX_ROUNDS = 10_000;
 
 /** How a statement ended its block early. */
 type Jump = 'return' | 'break' | 'continue' | null;
@@ -245,6 +254,9 @@ export class Replay {
   private readonly views: TrackedMap<ViewState, Map<string, ViewState>>;
   private readonly enums: TrackedMap<string[], Map<string, string[]>>;
   private readonly moved: TrackedMap<string, Map<string, string>>;
+  private readonly rawTables: TrackedMap<string, Map<string, string>>;
+  /** Raw statements of this replay by place, to report repeats at one place once. */
+  private readonly rawAt = new Map<string, { diagnostic: Diagnostic; message: string; count: number }>();
   private readonly own = new Set<object>();
   readonly diagnostics: Diagnostic[] = [];
   readonly counters: ReplayCounters = { rawStatements: 0, rawSchemaStatements: 0, unresolved: 0 };
@@ -257,21 +269,24 @@ export class Replay {
     private readonly files: { get(path: string): FileContext | undefined },
     /** What `knex.client` holds for the run's client; undefined when the client is not known. */
     private readonly client?: KnexClientInfo,
+    /** The schema unqualified names resolve to (the connection's search path), when not the dialect's default. */
+    private readonly schema?: string,
   ) {
     // the state's maps are not changed: each is copied on its first write
     this.tables = new TrackedMap(state.tables, (m) => new PMap(m));
     this.views = new TrackedMap(state.views as Map<string, ViewState>, (m) => new Map(m));
     this.enums = new TrackedMap(state.enums as Map<string, string[]>, (m) => new Map(m));
     this.moved = new TrackedMap(state.moved as Map<string, string>, (m) => new Map(m));
+    this.rawTables = new TrackedMap(state.rawTables as Map<string, string>, (m) => new Map(m));
   }
 
   state(): SchemaState {
-    return { tables: this.tables.result(), views: this.views.result(), enums: this.enums.result(), moved: this.moved.result() };
+    return { tables: this.tables.result(), views: this.views.result(), enums: this.enums.result(), moved: this.moved.result(), rawTables: this.rawTables.result() };
   }
 
   /** What the replay read and wrote of each part of the state. */
   access(): StateAccess {
-    return { tables: this.tables, views: this.views, enums: this.enums, moved: this.moved };
+    return { tables: this.tables, views: this.views, enums: this.enums, moved: this.moved, rawTables: this.rawTables };
   }
 
   // ---------------------------------------------------------------- entry points
@@ -284,7 +299,14 @@ export class Replay {
     if (role === 'init' && facts.top) this.exec(facts.top, top);
     const key = role === 'init' ? facts.main : facts.up;
     if (!key) {
-      if (role === 'migration') this.warn('knex/no-up', 'no up() function is exported: Knex would refuse this migration; it is left out', 1);
+      if (role === 'migration') {
+        // (`export default { up }`, the form of migration runners other than Knex's own)
+        const d = facts.exports['default'];
+        const inDefault = !!d && 'val' in d && isObj(d.val) && d.val.obj.some(([k]) => k === 'up');
+        this.warn('knex/no-up', inDefault
+          ? 'no up() function is exported: the default export holds one, but Knex takes up() from the module itself, so it would refuse this migration (a migration for another runner?); it is left out'
+          : 'no up() function is exported: Knex would refuse this migration; it is left out', 1);
+      }
       else if (!facts.top) this.warn('knex/no-setup', 'the init file has no up(), default-exported function or top-level builder calls', 1);
       return;
     }
@@ -506,6 +528,17 @@ export class Replay {
       const c = this.cond(v.when, frame);
       return this.value(c === false ? v.else : v.then, frame, depth + 1);
     }
+    if ('range' in v) {
+      const from = this.value(v.range.from, frame, depth + 1);
+      const to = this.value(v.range.to, frame, depth + 1);
+      if (typeof from !== 'number' || typeof to !== 'number' || !Number.isFinite(from) || !Number.isFinite(to)) return new Opaque(valText(v));
+      const out: number[] = [];
+      for (let i = from; v.range.inclusive ? i <= to : i < to; i += v.range.step) {
+        if (out.length === MAX_ROUNDS) return new Opaque(`${valText(v)} (more than ${MAX_ROUNDS} rounds)`);
+        out.push(i);
+      }
+      return out;
+    }
     if ('undef' in v) return undefined;
     return new Opaque(valText(v));
   }
@@ -706,16 +739,36 @@ export class Replay {
   private raw(sqlArg: Runtime, line: number): void {
     const sql = typeof sqlArg === 'string' ? sqlArg : sqlArg instanceof RawSql ? sqlArg.sql : sqlArg instanceof Opaque ? sqlArg.text : '';
     this.counters.rawStatements++;
-    const head = sql.replace(/^(\s|--[^\n]*\n|\/\*[\s\S]*?\*\/)+/, '');
-    const keyword = /^[A-Za-z]+/.exec(head)?.[0]?.toLowerCase() ?? '';
+    const head = sqlHead(sql);
     const short = head.replace(/\s+/g, ' ').slice(0, 80) + (head.length > 80 ? '...' : '');
-    const schemaLike = ['create', 'alter', 'drop', 'rename', 'comment', 'truncate', 'grant', 'revoke', 'do'].includes(keyword);
+    const schemaLike = isSchemaSql(head);
     if (schemaLike) {
       this.counters.rawSchemaStatements++;
-      this.warn('knex/raw-sql', `raw SQL is not interpreted (a schema statement: ${short}); the replayed schema may differ from the database here`, line);
-    } else {
-      this.info('knex/raw-sql', `raw SQL is not interpreted (${short || 'not known statically'}); no schema effect is assumed`, line);
+      for (const name of rawTableNames(sql)) {
+        const p = this.place(undefined, name);
+        if (!this.tables.has(this.key(p))) this.rawTables.set(this.key(p), `${this.file?.path ?? '?'}:${line}`);
+      }
     }
+    // a statement repeated at one place (a loop) is counted each time and reported once
+    const severity = schemaLike ? 'warning' : 'info';
+    const at = `${this.file?.path ?? ''}:${line}:${severity}`;
+    const seen = this.rawAt.get(at);
+    if (seen) {
+      seen.count++;
+      seen.diagnostic.message = `${seen.message} (${seen.count} statements at this place, the first shown)`;
+      return;
+    }
+    const message = schemaLike
+      ? `raw SQL is not interpreted (a schema statement: ${short}); the replayed schema may differ from the database here`
+      : `raw SQL is not interpreted (${short || 'not known statically'}); no schema effect is assumed`;
+    this.diag(severity, 'knex/raw-sql', message, line);
+    this.rawAt.set(at, { diagnostic: this.diagnostics[this.diagnostics.length - 1]!, message, count: 1 });
+  }
+
+  /** Why a table is missing from the replay (raw SQL created it, or nothing did): the end of a diagnostic's first clause. */
+  private missing(p: { ns?: string; name: string }): string {
+    const at = this.rawTables.get(this.key(p));
+    return at ? `: raw SQL at ${at} created it, and raw SQL is not interpreted` : ' (Knex would fail here)';
   }
 
   // ---------------------------------------------------------------- names
@@ -737,7 +790,7 @@ export class Replay {
       n = name.slice(0, i);
       t = name.slice(i + 1);
     }
-    if (n && n === defaultNamespace(this.dialect)) n = undefined;
+    if (n && n === (this.schema ?? defaultNamespace(this.dialect))) n = undefined;
     return { ...(n ? { ns: n } : {}), name: t };
   }
 
@@ -821,7 +874,7 @@ export class Replay {
         const dropped = this.tables.get(this.key(p));
         if (dropped) this.moved.delete(dropped.id);
         if (!this.tables.delete(this.key(p)) && m === 'dropTable') {
-          this.warn('knex/no-such-table', `dropTable: table ${this.label(p)} does not exist at this point of the replay (Knex would fail here); nothing is dropped`, line);
+          this.warn('knex/no-such-table', `dropTable: table ${this.label(p)} does not exist at this point of the replay${this.missing(p)}; nothing is dropped`, line);
         }
         return s;
       }
@@ -833,7 +886,10 @@ export class Replay {
         const pt = this.place(s.ns, to);
         const t = this.mut(this.key(pf));
         if (!t) {
-          this.warn('knex/no-such-table', `renameTable: table ${this.label(pf)} does not exist at this point of the replay; nothing is renamed`, line);
+          // a table of raw SQL keeps its place under its new name
+          const raw = this.rawTables.get(this.key(pf));
+          if (raw !== undefined && !this.tables.has(this.key(pt))) this.rawTables.set(this.key(pt), raw);
+          this.warn('knex/no-such-table', `renameTable: table ${this.label(pf)} does not exist at this point of the replay${this.missing(pf)}; nothing is renamed`, line);
           return s;
         }
         if (this.tables.has(this.key(pt))) {
@@ -922,7 +978,7 @@ export class Replay {
   private runTable(tb: TableBuilder, cb: Runtime, line: number, opts: { ifNotExists?: boolean; like?: { ns?: string; name: string } }): void {
     const key = this.key(tb);
     if (tb.mode === 'alter' && !this.tables.has(key)) {
-      this.warn('knex/no-such-table', `table ${this.label(tb)} does not exist at this point of the replay (Knex would fail here); its changes are left out`, line);
+      this.warn('knex/no-such-table', `table ${this.label(tb)} does not exist at this point of the replay${this.missing(tb)}; its changes are left out`, line);
       return;
     }
     if (tb.mode === 'create' && this.tables.has(key)) {
@@ -1131,7 +1187,7 @@ export class Replay {
     if (like) {
       const src = this.tables.get(this.key(like));
       if (!src) {
-        this.warn('knex/no-such-table', `createTableLike: table ${this.label(like)} does not exist at this point of the replay; ${tb.name} gets only its own columns`, tb.line);
+        this.warn('knex/no-such-table', `createTableLike: table ${this.label(like)} does not exist at this point of the replay${this.missing(like)}; ${tb.name} gets only its own columns`, tb.line);
       } else {
         // what each database copies (PostgreSQL: LIKE ... INCLUDING ALL; MySQL: CREATE TABLE ... LIKE; SQLite: CREATE TABLE AS SELECT)
         const sqlite = this.dialect === 'sqlite';
@@ -1382,8 +1438,9 @@ export function mayChangeSchema(body: readonly Stmt[]): boolean {
   return body.some((st) => {
     switch (st.k) {
       case 'chain':
-        // (a callback handed to any call, `transaction(cb)` say, may hold builder calls of its own)
-        return (st.chain.calls[0]?.m !== '()' && st.chain.calls.some((c) => SCHEMA_CALLS.has(c.m) || c.m === '[]')) || st.chain.calls.some(callbackMayChange);
+        // (a callback handed to any call, `transaction(cb)` say, may hold builder calls of its own;
+        // raw SQL known to start with a data statement, `UPDATE ...` say, changes no schema)
+        return (st.chain.calls[0]?.m !== '()' && st.chain.calls.some((c) => (SCHEMA_CALLS.has(c.m) && !(c.m === 'raw' && isDataSql(c.args?.[0]))) || c.m === '[]')) || st.chain.calls.some(callbackMayChange);
       case 'if':
         return mayChangeSchema(st.then) || mayChangeSchema(st.else);
       case 'each':
@@ -1393,12 +1450,45 @@ export function mayChangeSchema(body: readonly Stmt[]): boolean {
       case 'switch':
         return st.cases.some((c) => mayChangeSchema(c.body));
       case 'invoke':
-      case 'opaque':
         return true;
+      case 'opaque':
+        // (printing, JSON and arithmetic run no code of the caller's)
+        return !NO_SCHEMA_GLOBALS.test(st.callee);
       default:
         return false;
     }
   });
+}
+
+/** Calls of globals that never change a schema: `console.log(...)`, `JSON.stringify(...)`, `Math.max(...)`. */
+const NO_SCHEMA_GLOBALS = /^(console|JSON|Math)\.[A-Za-z]+$/;
+
+const RAW_TABLE = /\b(?:create\s+(?:(?:global|local)\s+)?(?:(?:temporary|temp|unlogged)\s+)?table\s+(?:if\s+not\s+exists\s+)?|alter\s+table\s+(?:if\s+exists\s+)?(?:only\s+)?(?:[`"\[]?[\w$]+[`"\]]?\s*\.\s*)?[`"\[]?[\w$]+[`"\]]?\s+rename\s+to\s+)((?:[`"\[]?[\w$]+[`"\]]?\s*\.\s*)?[`"\[]?[\w$]+[`"\]]?)/gi;
+
+/** The tables a raw SQL text creates or renames to (`CREATE TABLE x`, `ALTER TABLE y RENAME TO x`), unquoted. */
+export function rawTableNames(sql: string): string[] {
+  const out: string[] = [];
+  for (const m of sql.matchAll(RAW_TABLE)) out.push(m[1]!.replace(/[`"[\]\s]/g, ''));
+  return out;
+}
+
+/** SQL text without its leading blanks and comments. */
+function sqlHead(sql: string): string {
+  return sql.replace(/^(\s|--[^\n]*\n|\/\*[\s\S]*?\*\/)+/, '');
+}
+
+/** Whether SQL text (its head) starts like a schema statement. */
+function isSchemaSql(head: string): boolean {
+  const keyword = /^[A-Za-z]+/.exec(head)?.[0]?.toLowerCase() ?? '';
+  return ['create', 'alter', 'drop', 'rename', 'comment', 'truncate', 'grant', 'revoke', 'do'].includes(keyword);
+}
+
+/** Whether the argument of a `raw` call is SQL whose start is known statically and is no schema statement. */
+function isDataSql(a: Arg | undefined): boolean {
+  const first = typeof a === 'string' ? a : a !== null && typeof a === 'object' && 'cat' in a && typeof a.cat[0] === 'string' ? a.cat[0] : undefined;
+  if (first === undefined) return false;
+  const head = sqlHead(first);
+  return /^[A-Za-z]+\s/.test(head) && !isSchemaSql(head);
 }
 
 /** Whether statements may end their block early (a `return`, `break` or `continue`, also inside an if or a switch's clauses). */
@@ -1474,6 +1564,7 @@ export function valText(v: Val): string {
   if ('fn' in v) return `fn.${v.fn}(${v.args.map(valText).join(', ')})`;
   if ('dir' in v) return '__dirname';
   if ('join' in v) return `path.join(${v.join.map(valText).join(', ')})`;
+  if ('range' in v) return `${valText(v.range.from)} up to ${valText(v.range.to)}${v.range.inclusive ? ' (included)' : ''}${v.range.step === 1 ? '' : ` by ${v.range.step}`}`;
   return 'undefined';
 }
 
