@@ -1,5 +1,6 @@
 import { spawn } from 'node:child_process';
 import { gitEnv, runGit } from './run-git.js';
+import { EXIT, UsageError } from '../util/errors.js';
 
 /** One entry of a commit's raw diff against its first parent. */
 export interface RawChange {
@@ -199,13 +200,25 @@ function logRange(
     child.on('error', reject);
     child.on('close', (code) => {
       if (code !== 0) {
-        reject(new Error(`git log failed: ${Buffer.concat(err).toString('utf8').trim()}`));
+        reject(logFailure(Buffer.concat(err).toString('utf8').trim(), opts.renames === true));
         return;
       }
       parser.end();
       resolve();
     });
   });
+}
+
+/**
+ * The error of a failed `git log`. An object git cannot read (a partial or damaged clone) is the
+ * user's to fix, and says how: rename detection reads the contents of the files it compares.
+ */
+export function logFailure(stderr: string, renames: boolean): Error {
+  const missing = /unable to read ([0-9a-f]{40,64})/.exec(stderr);
+  if (!missing) return new Error(`git log failed: ${stderr}`);
+  const why = renames ? ', which following the literal --path entries through renames needs (rename detection compares file contents)' : '';
+  const fix = renames ? 'fetch the missing objects, or give the paths as globs (DIR/**), which are not followed through renames' : 'fetch the missing objects';
+  return new UsageError(`git cannot read object ${missing[1]} of the repository${why}; the clone may be partial or damaged: ${fix}`, EXIT.failure);
 }
 
 /** Incremental parser of `git log --raw -z` output in the format above. */
