@@ -1,6 +1,10 @@
+import { createRequire } from 'node:module';
 import { describe, expect, it } from 'vitest';
+import { DATA_SOURCE_TYPES } from '@schema-strata/adapter-typeorm';
 import { compareWithOracle, oracle } from './oracle.js';
 import { runAdapter } from './harness.js';
+
+const require = createRequire(import.meta.url);
 
 /**
  * Finding the entities as the data source says (read statically), the naming strategy and the
@@ -165,5 +169,61 @@ describe('naming strategy and options of the data source', () => {
     const theirs = await oracle(RELATED, { entityPrefix: 'coop_', schema: 'lending' });
     expect(compareWithOracle(r.snapshot!, theirs)).toEqual([]);
     expect(r.snapshot!.tables.map((t) => `${t.namespace}.${t.name}`).sort()).toEqual(['lending.coop_coop_member', 'lending.coop_tool_loan', 'lending.coop_tool_loan_witnessed_by_coop_member']);
+  });
+});
+
+describe("the application's data source, not a test helper's", () => {
+  // the application reads its database type at start-up; an integration-test helper names one
+  const files = {
+    'package.json': '{ "name": "coop" }',
+    'src/data-source.ts':
+      "import { DataSource, type DataSourceOptions } from 'typeorm';\nimport { SnakeNamingStrategy } from 'typeorm-naming-strategies';\n\nexport const ds = new DataSource({\n  type: process.env.COOP_DB,\n  url: process.env.COOP_DB_URL,\n  entities: ['src/entity/*.ts'],\n  namingStrategy: new SnakeNamingStrategy(),\n} as DataSourceOptions);\n",
+    'integration-tests/helpers/db.ts':
+      "import { DataSource } from 'typeorm';\n\nexport const testDb = new DataSource({ type: 'sqlite', database: ':memory:', entities: ['src/entity/*.ts'], synchronize: true });\n",
+    'src/entity/member.ts':
+      "import { Column, Entity, PrimaryGeneratedColumn } from 'typeorm';\n\n@Entity()\nexport class Member {\n  @PrimaryGeneratedColumn()\n  id: number;\n\n  @Column()\n  displayName: string;\n\n  @Column()\n  joinedOn: Date;\n}\n",
+  };
+
+  it("decides the database and the naming, as TypeORM's metadata under the application's options has them", async () => {
+    const r = await runAdapter(files);
+    expect(r.diagnostics.map((d) => [d.code, d.file])).toEqual([['typeorm/database-unknown', 'src/data-source.ts']]);
+    // the oracle builds the entities alone (the data source files would connect), with the application's naming on PostgreSQL
+    const entities = { 'src/entity/member.ts': files['src/entity/member.ts'] };
+    expect(compareWithOracle(r.snapshot!, await oracle(entities, { naming: 'snake' }))).toEqual([]);
+    expect(r.snapshot!.tables[0]!.columns.map((c) => c.name)).toEqual(['id', 'display_name', 'joined_on']);
+  });
+
+  it('says so when the test helpers disagree on the type', async () => {
+    const r = await runAdapter({ ...files, 'integration-tests/helpers/pg.ts': "import { DataSource } from 'typeorm';\n\nexport const pgDb = new DataSource({ type: 'postgres', entities: ['src/entity/*.ts'] });\n" });
+    const d = r.diagnostics.find((x) => x.code === 'typeorm/several-data-sources')!;
+    expect(d.message).toBe('data sources of several types (sqlite, postgres); the settings of src/data-source.ts are used (a type decided at run time), not those of test code');
+    // PostgreSQL's rules, as the database-unknown diagnostic says (SQLite's would make it a datetime)
+    expect(r.snapshot!.tables[0]!.columns.find((c) => c.name === 'joined_on')!.type).toEqual({ kind: 'timestamp', withZone: false });
+  });
+});
+
+describe("a configuration of another tool, with `entities` and a type TypeORM has no driver for", () => {
+  it("does not decide the database: the types are TypeORM's DriverFactory's", async () => {
+    // reference: the list of drivers TypeORM's DriverFactory reports for a type it does not know
+    const { DriverFactory } = require('typeorm/driver/DriverFactory') as { DriverFactory: new () => { create(c: unknown): unknown } };
+    let supported: string[] = [];
+    try {
+      new DriverFactory().create({ options: { type: 'postgresql' } });
+    } catch (e) {
+      supported = [...(e as Error).message.matchAll(/"([\w-]+)"/g)].map((m) => m[1]!).filter((t) => t !== 'postgresql');
+    }
+    expect([...DATA_SOURCE_TYPES].sort()).toEqual(supported.sort());
+    const files = {
+      'package.json': '{ "name": "coop" }',
+      'src/catalog/orm.config.ts': "import * as entities from '../entity/member';\n\nmodule.exports = { entities: Object.values(entities), clientUrl: 'postgres://localhost/catalog', type: 'postgresql' };\n",
+      'src/data-source.ts': "import { DataSource } from 'typeorm';\n\nexport const ds = new DataSource({ type: 'mysql', entities: ['src/entity/*.ts'] });\n",
+      'src/entity/member.ts': "import { Column, Entity, PrimaryGeneratedColumn } from 'typeorm';\n\n@Entity()\nexport class Member {\n  @PrimaryGeneratedColumn()\n  id: number;\n\n  @Column()\n  joinedOn: Date;\n}\n",
+    };
+    const r = await runAdapter(files);
+    expect(r.diagnostics.map((d) => d.code)).toEqual(['typeorm/several-data-sources']);
+    expect(r.diagnostics[0]!.message).toContain('the settings of src/data-source.ts are used (mysql)');
+    // MySQL's rule for Date (TypeORM's MysqlDriver normalises it to datetime; types.test.ts checks the mapping)
+    expect(r.snapshot!.tables[0]!.columns.find((c) => c.name === 'joinedOn')!.nativeType).toBe('Date');
+    expect(r.snapshot!.tables[0]!.columns.find((c) => c.name === 'joinedOn')!.type.kind).toBe('datetime');
   });
 });

@@ -206,7 +206,7 @@ const steps: Step[] = [
   { message: 'Implement condition', files: { 'src/condition.ts': CONDITION(['good', 'worn']), 'src/tool.ts': TOOL({ cls: 'Implement', nameLength: 160, code: true, tags: './tag', condition: true }) } },
   { message: 'A broken implement can wait for repair', files: { 'src/condition.ts': CONDITION(['good', 'worn', 'broken']) }, tag: 'enum-values' },
   { message: 'Work in progress on brands', files: { 'src/tool.ts': TOOL({ cls: 'Implement', nameLength: 160, code: true, tags: './tag', condition: true, broken: true }) }, tag: 'bad:syntax' },
-  { message: 'Brands, sized by a helper', files: { 'src/sizes.ts': "export function lengthFor(_what: string): number {\n  return 40;\n}\n", 'src/tool.ts': TOOL({ cls: 'Implement', nameLength: 160, code: true, tags: './tag', condition: true, computed: true }) }, tag: 'bad:not-literal' },
+  { message: 'Brands, sized by a helper', files: { 'src/sizes.ts': "export function lengthFor(_what: string): number {\n  if (process.env.COOP_WIDE_COLUMNS) return 80;\n  return 40;\n}\n", 'src/tool.ts': TOOL({ cls: 'Implement', nameLength: 160, code: true, tags: './tag', condition: true, computed: true }) }, tag: 'bad:not-literal' },
   { message: 'Tags are dropped (the implement still refers to them)', files: { 'src/tag.ts': null }, tag: 'bad:deleted-target' },
   { message: 'Implements no longer tagged', files: { 'src/tool.ts': TOOL({ cls: 'Implement', nameLength: 160, code: true, condition: true }), 'src/sizes.ts': null } },
   { message: 'A copy of the members table', files: { 'src/zz-member-copy.ts': DUPLICATE }, tag: 'bad:duplicate-table' },

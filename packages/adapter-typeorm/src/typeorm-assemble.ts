@@ -11,12 +11,12 @@ import {
 import {
   exportSignature, get, isArrE, isFnE, isObjE, isSymE, isUnk, Project, str, symName, textOf, type E, type Sym, type Tracked, type VersionDelta,
 } from './typeorm-evaluate.js';
-import { globMatcher, packagesByName, workspacePackage, type WorkspacePackage } from './typeorm-modules.js';
+import { globMatcher, isTestPath, packagesByName, workspacePackage, type WorkspacePackage } from './typeorm-modules.js';
 import { namingRules, shorten, type NamingRules } from './typeorm-naming.js';
 import { entityGlobs } from './typeorm-locate.js';
 import type { ClassFact, ConfigFact, TypeormFileFacts } from './typeorm-parse.js';
 import {
-  driverFamily, isSupportedType, mappedTypes, nativeTypeText, neutralType, normalizeType,
+  DATA_SOURCE_TYPES, driverFamily, isSupportedType, mappedTypes, nativeTypeText, neutralType, normalizeType,
   type ColumnTypeRef, type DriverFamily, type MappedTypes,
 } from './typeorm-types.js';
 
@@ -426,7 +426,17 @@ class Builder {
     for (const file of configFiles) {
       for (const cfg of files.get(file)!.configs) configs.push({ file, cfg, o: this.project.eval(cfg.options, { file, frames: [], depth: 0 }) });
     }
-    const withType = configs.find((c) => typeof get(c.o, 'type') === 'string') ?? configs[0];
+    // the application's own data source decides the database and the naming, not a test helper's
+    // (the entities of every configuration are read): among the configurations outside test code
+    // when there are any, the first whose type is a literal
+    // an object with `entities` and a `type` TypeORM has no driver for is another tool's (MikroORM's `postgresql`)
+    const typeOk = (c: (typeof configs)[number]): boolean => {
+      const t = get(c.o, 'type');
+      return typeof t !== 'string' || DATA_SOURCE_TYPES.has(t);
+    };
+    const own = configs.filter((c) => !isTestPath(c.file) && typeOk(c));
+    const deciding = own.length > 0 ? own : configs;
+    const withType = deciding.find((c) => typeof get(c.o, 'type') === 'string') ?? deciding[0];
     let type = withType ? get(withType.o, 'type') : undefined;
     if (withType && type !== undefined && typeof type !== 'string') {
       this.diagnostics.push({ severity: 'info', code: 'typeorm/database-unknown', file: withType.file, line: withType.cfg.line, message: `the data source type (${textOf(type)}) depends on run-time configuration; PostgreSQL's type rules are used (set --typeorm-database)` });
@@ -434,7 +444,7 @@ class Builder {
     }
     const distinctTypes = new Set(configs.map((c) => get(c.o, 'type')).filter((t): t is string => typeof t === 'string'));
     if (distinctTypes.size > 1) {
-      this.diagnostics.push({ severity: 'info', code: 'typeorm/several-data-sources', message: `data sources of several types (${[...distinctTypes].join(', ')}); the types of ${withType!.file} (${String(type)}) are used` });
+      this.diagnostics.push({ severity: 'info', code: 'typeorm/several-data-sources', message: `data sources of several types (${[...distinctTypes].join(', ')}); the settings of ${withType!.file} are used (${typeof type === 'string' ? type : 'a type decided at run time'})${own.length < configs.length ? ', not those of test code' : ''}` });
     }
     const t = this.settings.database !== 'auto' ? this.settings.database : typeof type === 'string' ? type : undefined;
     const family = driverFamily(t);

@@ -441,7 +441,8 @@ export class Project {
     const parts = name.split('.');
     let cur: E = this.symToE(this.symbol(file, parts[0]!));
     for (const p of parts.slice(1)) cur = this.member(cur, p);
-    return cur;
+    // what cannot be read is named as written (`nativeValues.jsonType`), not by the member that failed
+    return parts.length > 1 && isUnk(cur) ? { $: 'unk', t: name } : cur;
   }
 
   symToE(s: Sym): E {
@@ -499,6 +500,20 @@ export class Project {
         if (s.k === 'global') return { $: 'sym', s: { k: 'global', name: `${s.name}.${name}` } };
         if (s.k === 'external') return { $: 'sym', s: { k: 'external', module: s.module, name: `${s.name}.${name}` } };
         if (s.k === 'missing') return o;
+        if (s.k === 'class') {
+          const st = s.c.statics?.find(([n]) => n === name);
+          if (st) {
+            // the value depends on the class's file, however the class was found (as a constant's does)
+            const shallow = this.shallowDepth;
+            this.shallowDepth = 0;
+            try {
+              this.fact(s.file);
+              return this.eval(st[1], { file: s.file, frames: [], depth: 0 });
+            } finally {
+              this.shallowDepth = shallow;
+            }
+          }
+        }
         return { $: 'unk', t: `${symName(s)}.${name}` };
       }
       default:
@@ -556,6 +571,8 @@ export class Project {
       case 'm':
         return this.member(this.eval(v.o, env), v.n);
       case 'c': {
+        const applied = this.appliedEach(v.c, env);
+        if (applied) return applied;
         const callee = this.eval(v.c, env);
         const args = this.args(v.a, env);
         return this.call(callee, args, env);
@@ -595,6 +612,22 @@ export class Project {
       case 'x':
         return { $: 'unk', t: v.t };
     }
+  }
+
+  /**
+   * `decorators.forEach((d) => d(target, key))` in a custom decorator: the TypeORM decorators of
+   * a list it was given, applied in the list's order (what the callback does with each is not
+   * followed; a wrapper that loops over decorators applies them).
+   */
+  private appliedEach(c: Value, env: Env): E | undefined {
+    let list: Value | undefined;
+    if (c.k === 'm' && c.n === 'forEach') list = c.o;
+    else if (c.k === 'p' && c.a && c.a[c.a.length - 1] === 'forEach') list = { ...c, a: c.a.slice(0, -1) };
+    else if (c.k === 'r' && c.n.endsWith('.forEach')) list = { k: 'r', n: c.n.slice(0, -'.forEach'.length) };
+    if (!list) return undefined;
+    const arr = this.eval(list, env);
+    if (!isArrE(arr) || arr.e.length === 0 || !arr.e.every(isDecoE)) return undefined;
+    return { $: 'decos', list: arr.e, fn: 'forEach' };
   }
 
   private args(list: Value[], env: Env): E[] {
@@ -656,6 +689,9 @@ export class Project {
       const r = this.eval(f.returns, env);
       if (isDecoE(r)) list.push(r);
       else if (typeof r === 'object' && r !== null && r.$ === 'decos') list.push(...r.list);
+      // a helper that returns a value (`type: dbType('timestamptz')`): its value, unless it has
+      // several returns (which one runs is decided at run time: read as `dbType()`, not a value)
+      else if (!f.branched) return r;
     }
     return { $: 'decos', list, fn: f.name };
   }
@@ -883,6 +919,8 @@ export function textOf(e: E): string {
       return `{ ${[...e.p].map(([k, v]) => `${k}: ${textOf(v)}`).join(', ')} }`;
     case 'props':
       return e.path;
+    case 'decos':
+      return `${e.fn}()`;
     default:
       return e.$;
   }

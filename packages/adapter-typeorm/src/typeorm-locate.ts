@@ -2,7 +2,7 @@ import { posix } from 'node:path';
 import { BlobMemo, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
 import { readSettings, TYPEORM_DECORATORS } from './typeorm-config.js';
 import {
-  globMatcher, isDeclarationFile, ModuleResolver, nearestTsconfig, packagesByName, parsePackageJson, sourceGlobs, SOURCE_FILE, tsconfigView, workspacePackage,
+  globMatcher, isDeclarationFile, isTestPath, ModuleResolver, nearestTsconfig, packagesByName, parsePackageJson, sourceGlobs, SOURCE_FILE, tsconfigView, workspacePackage,
   type PackageFact, type TsconfigView, type WorkspacePackage,
 } from './typeorm-modules.js';
 
@@ -19,7 +19,6 @@ export const SEARCHED =
   'TypeORM data source options (new DataSource, createConnection, TypeOrmModule.forRoot, ormconfig.*) and their `entities`, else every file with an @Entity, @ChildEntity, @ViewEntity class or an EntitySchema';
 
 const TS_SOURCE = /\.(tsx?|mts|cts)$/;
-const TEST_PATH = /(^|\/)(__tests__|__mocks__|tests?|e2e|spec)\/|\.(spec|test|e2e-spec)\.[cm]?[jt]sx?$/;
 
 /** What the locate step needs of one source file, found by a cheap text scan (no syntax tree). */
 interface Scan {
@@ -391,12 +390,12 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
     if (open || roots.length === 0) {
       roots = [];
       for (const p of allList) {
-        if (!TS_SOURCE.test(p) || isDeclarationFile(p) || TEST_PATH.test(p)) continue;
+        if (!TS_SOURCE.test(p) || isDeclarationFile(p) || isTestPath(p)) continue;
         if ((await scanOf(p))?.entity) roots.push(p);
       }
       if (roots.length === 0) {
         for (const p of allList) {
-          if (!sourceOf(p) || TS_SOURCE.test(p) || TEST_PATH.test(p)) continue;
+          if (!sourceOf(p) || TS_SOURCE.test(p) || isTestPath(p)) continue;
           if ((await scanOf(p))?.entity) roots.push(p);
         }
       }

@@ -13,6 +13,14 @@ const EXTENSIONS = ['.ts', '.tsx', '.mts', '.cts', '.d.ts', '.js', '.jsx', '.mjs
 const JS_TO_TS: Record<string, string[]> = { '.js': ['.ts', '.tsx'], '.jsx': ['.tsx'], '.mjs': ['.mts'], '.cjs': ['.cts'] };
 
 export const SOURCE_FILE = /\.(tsx?|mts|cts|jsx?|mjs|cjs)$/;
+
+/**
+ * Test code: a file under a test directory (`test/`, `__tests__/`, `e2e/`, also with a prefix:
+ * `integration-tests/`, `api_e2e/`) or named `*.spec.ts` / `*.test.ts`. A directory that only
+ * starts with such a word (`test-runs/`, a feature of an application) is not test code.
+ */
+const TEST_PATH = /(^|\/)([\w.]*[-_])?(__tests__|__mocks__|tests?|e2e|spec)\/|\.(spec|test|e2e-spec)\.[cm]?[jt]sx?$/;
+export const isTestPath = (p: string): boolean => TEST_PATH.test(p);
 export const isDeclarationFile = (p: string): boolean => /\.d\.[cm]?ts$/.test(p);
 
 export type Resolved =

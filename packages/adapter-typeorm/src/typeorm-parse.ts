@@ -96,6 +96,8 @@ export interface ClassFact {
   props: PropertyFact[];
   /** Method names (for naming strategy classes). */
   methods?: string[];
+  /** Static properties with an initializer (`static joinTable = 'tool_tags'`), read as values. */
+  statics?: Array<[string, Value]>;
   /** The class body mentions snake case (for naming strategy classes). */
   snake?: boolean;
 }
@@ -109,6 +111,8 @@ export interface FunctionFact {
   calls: Value[];
   /** Expression returned, when the body is one expression or returns one. */
   returns?: Value;
+  /** The body has more than one `return` of a value (under `if`, `switch`...): which one runs is decided at run time. */
+  branched?: true;
   /** Default values of parameters, by index (null: none). */
   defaults?: Array<Value | null>;
 }
@@ -360,6 +364,20 @@ class Reader {
     return undefined;
   }
 
+  /** How many `return <value>` statements the function's own body holds (inner functions aside). */
+  private valueReturns(fn: TsNamespace.FunctionLikeDeclarationBase): number {
+    const ts = this.ts;
+    if (!fn.body || !ts.isBlock(fn.body)) return 1;
+    let n = 0;
+    const visit = (node: TsNamespace.Node): void => {
+      if (ts.isFunctionLike(node) || ts.isClassLike(node)) return;
+      if (ts.isReturnStatement(node) && node.expression) n++;
+      node.forEachChild(visit);
+    };
+    fn.body.forEachChild(visit);
+    return n;
+  }
+
   private localsOf(fn: TsNamespace.FunctionLikeDeclarationBase, scope: Scope): void {
     const ts = this.ts;
     const body = fn.body;
@@ -397,12 +415,14 @@ class Reader {
     };
     if (!fn.body) return null;
     visit(fn.body, scope);
-    if (calls.length === 0) return null;
     const r = this.returned(fn);
+    // a function with no call is kept when it returns a value: a helper of decorator options
+    if (calls.length === 0 && !r) return null;
     const defaults = fn.parameters.map((p) => (p.initializer ? this.value(p.initializer) : null));
     return {
       name, line, exported, isDefault, calls,
       ...(r ? { returns: this.value(r, scope) } : {}),
+      ...(this.valueReturns(fn) > 1 ? { branched: true as const } : {}),
       ...(defaults.some((d) => d !== null) ? { defaults } : {}),
     };
   }
@@ -532,7 +552,11 @@ function classFact(r: Reader, c: TsNamespace.ClassLikeDeclaration, exported: boo
   const methods: string[] = [];
   for (const m of c.members) {
     if (ts.isPropertyDeclaration(m)) {
-      if (hasModifier(ts, m, ts.SyntaxKind.StaticKeyword)) continue;
+      if (hasModifier(ts, m, ts.SyntaxKind.StaticKeyword)) {
+        const name = r.propName(m.name);
+        if (name !== null && m.initializer) (fact.statics ??= []).push([name, r.value(m.initializer)]);
+        continue;
+      }
       const name = r.propName(m.name);
       if (name === null) continue;
       const prop: PropertyFact = { name, line: r.line(m.name), decorators: decoratorsOf(r, m), design: r.design(m.type, typeParams) };
@@ -811,8 +835,12 @@ export function isOrmconfigPath(p: string): boolean {
   return /^ormconfig\.(json|js|cjs|mjs|ts|env|ya?ml)$/.test(basename(p)) || basename(p) === '.env';
 }
 
+/**
+ * Whether a path is a tsconfig file: `tsconfig*.json` (the adapter's watch list), so that a base
+ * such as `tsconfig-base.json` or `tsconfig_node.json` that an `extends` names is read as one.
+ */
 export function isTsconfigPath(p: string): boolean {
-  return /^tsconfig(\.[\w-]+)?\.json$/.test(basename(p));
+  return /^tsconfig[^/]*\.json$/.test(basename(p));
 }
 
 /** The facts of one file (source, tsconfig or TypeORM configuration), from its text alone. */

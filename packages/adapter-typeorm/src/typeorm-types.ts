@@ -12,6 +12,12 @@ export type ColumnTypeRef = string | { ctor: string };
 /** Families of TypeORM drivers whose type rules this adapter knows. */
 export type DriverFamily = 'postgres' | 'mysql' | 'sqlite' | 'mssql' | 'mongodb' | 'other';
 
+/** The data source types TypeORM 0.3 has a driver for (its DriverFactory); another `type` is some other tool's configuration. */
+export const DATA_SOURCE_TYPES: ReadonlySet<string> = new Set([
+  'aurora-mysql', 'aurora-postgres', 'better-sqlite3', 'capacitor', 'cockroachdb', 'cordova', 'expo', 'mariadb', 'mongodb', 'mssql',
+  'mysql', 'nativescript', 'oracle', 'postgres', 'react-native', 'sap', 'sqlite', 'sqljs', 'spanner',
+]);
+
 export function driverFamily(type: string | undefined): DriverFamily {
   switch (type) {
     case undefined:
