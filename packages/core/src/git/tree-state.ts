@@ -4,6 +4,9 @@ import type { BlobReader } from './blob-reader.js';
 import type { RawChange } from './log-pass.js';
 import { sortedIndex } from '../util/sorted.js';
 
+/** Paths added or removed in one commit above which the sorted path list is sorted anew rather than edited. */
+const RESORT_ABOVE = 64;
+
 /** Regular files only: symbolic links (120000) and submodules (160000) are not schema files. */
 export const isRegular = (mode: string): boolean => mode === '100644' || mode === '100755';
 
@@ -13,19 +16,45 @@ export const isRegular = (mode: string): boolean => mode === '100644' || mode ==
  */
 export class TreeState {
   private readonly files = new Map<string, string>();
+  /**
+   * The paths, sorted, once asked for. A commit that only changes files keeps the same array; one
+   * that adds or removes a few paths gets a new array with them put in or taken out (an array
+   * handed out is never changed); more than `RESORT_ABOVE` such paths make it sorted anew.
+   */
   private sorted: string[] | null = null;
 
   apply(changes: readonly RawChange[]): void {
+    const files = this.files;
+    // the paths that came or went, in order (a path may do both in one commit)
+    let moves: Array<[string, boolean]> | null = null;
+    const gone = (path: string): void => {
+      if (files.delete(path)) (moves ??= []).push([path, false]);
+    };
     for (const ch of changes) {
-      if (ch.status === 'R') this.files.delete(ch.from);
+      if (ch.status === 'R') gone(ch.from);
       if (ch.status === 'D') {
-        this.files.delete(ch.path);
+        gone(ch.path);
         continue;
       }
-      if (isRegular(ch.newMode)) this.files.set(ch.path, ch.newBlob);
-      else this.files.delete(ch.path);
+      if (isRegular(ch.newMode)) {
+        const had = files.has(ch.path);
+        files.set(ch.path, ch.newBlob);
+        if (!had) (moves ??= []).push([ch.path, true]);
+      } else gone(ch.path);
     }
-    if (changes.length > 0) this.sorted = null;
+    if (!moves || !this.sorted) return;
+    if (moves.length > RESORT_ABOVE) {
+      this.sorted = null;
+      return;
+    }
+    const next = this.sorted.slice();
+    for (const [path, added] of moves) {
+      const i = sortedIndex(next, path);
+      const there = next[i] === path;
+      if (added && !there) next.splice(i, 0, path);
+      else if (!added && there) next.splice(i, 1);
+    }
+    this.sorted = next;
   }
 
   get(path: string): string | undefined {
