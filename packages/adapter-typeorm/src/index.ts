@@ -1,6 +1,6 @@
 export { typeormAdapter } from './typeorm-adapter.js';
 export { assembleTypeorm, TypeormAssembler } from './typeorm-assemble.js';
-export { locateTypeorm, TYPEORM_WATCH, sourceGlobs } from './typeorm-locate.js';
+export { importResolutions, locateTypeorm, TYPEORM_WATCH, sourceGlobs } from './typeorm-locate.js';
 export { parseTypeormFile, type TypeormFileFacts } from './typeorm-parse.js';
 export { TYPEORM_OPTIONS, readSettings } from './typeorm-config.js';
 export { normalizeType, neutralType, driverFamily, DATA_SOURCE_TYPES } from './typeorm-types.js';

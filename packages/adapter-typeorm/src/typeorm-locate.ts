@@ -2,8 +2,8 @@ import { posix } from 'node:path';
 import { BlobMemo, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
 import { readSettings, TYPEORM_DECORATORS } from './typeorm-config.js';
 import {
-  globMatcher, isDeclarationFile, isTestPath, ModuleResolver, nearestTsconfig, packagesByName, parsePackageJson, sourceGlobs, SOURCE_FILE, tsconfigView, workspacePackage,
-  type PackageFact, type TsconfigView, type WorkspacePackage,
+  extendsTarget, globMatcher, isDeclarationFile, isTestPath, ModuleResolver, nearestTsconfig, packagesByName, parsePackageJson, ResolutionMemo, sourceGlobs, SOURCE_FILE, tsconfigView,
+  workspacePackage, type PackageFact, type TsconfigView, type WorkspacePackage,
 } from './typeorm-modules.js';
 
 export { sourceGlobs };
@@ -221,6 +221,18 @@ const sameScan = (a: Scan, b: Scan): boolean =>
 /** The previous commit's answer: most commits change files in ways that do not change which files are read. */
 let last: { sig: string; paths: readonly string[]; blobs: Map<string, string>; result: Located } | undefined;
 
+/** A fact as text, once per fact object (facts are kept per blob). */
+const factTexts = new WeakMap<object, string>();
+function factText(f: object | undefined): string {
+  if (!f) return '';
+  let t = factTexts.get(f);
+  if (t === undefined) factTexts.set(f, (t = JSON.stringify(f)));
+  return t;
+}
+
+/** Import resolutions kept from commit to commit of a walk (see `ResolutionMemo`; its counters serve tests). */
+export const importResolutions = new ResolutionMemo();
+
 /**
  * Locate the entity files of one commit, the files they follow (base classes, embedded classes,
  * enums, constants, custom decorators, barrels), the data source configuration and the tsconfig
@@ -229,6 +241,7 @@ let last: { sig: string; paths: readonly string[]; blobs: Map<string, string>; r
  */
 export async function locateTypeorm(tree: TreeView, req: LocateRequest): Promise<Located> {
   const sig = JSON.stringify(req.options) + '\u0000' + (req.paths ? req.paths.join('\u0001') : '\u0002');
+  importResolutions.note(tree.walk);
   const all = tree.paths();
   const paths = Array.isArray(all) ? (all as string[]) : [...all];
   if (last && last.sig === sig && last.paths.length === paths.length && paths.every((p, i) => p === last!.paths[i])) {
@@ -337,7 +350,18 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
   }
   const byName = packagesByName(packages);
   const usedPackages = new Set<WorkspacePackage>();
-  const resolver = new ModuleResolver(has, tsconfigFor, { packages: (n) => byName.get(n), hasDir, usedPackage: (pkg) => usedPackages.add(pkg) });
+  // what every resolution depends on beyond the paths it tests: what the tsconfig and package.json
+  // files say (a release that bumps every package's version changes none of it)
+  let context = '';
+  // (and which file each relative `extends` names: a path no tsconfig name need match)
+  for (const [p, f] of tsFacts) {
+    context += `${p}\u0000${factText(f)}`;
+    for (const e of f?.extends ?? []) if (e.startsWith('.') || e.startsWith('/')) context += `\u0000${extendsTarget(p, e, has) ?? ''}`;
+    context += '\u0001';
+  }
+  for (const pkg of packages) context += `${pkg.file}\u0000${factText(pkg)}\u0001`;
+  importResolutions.begin(context, dirs);
+  const resolver = new ModuleResolver(has, tsconfigFor, { packages: (n) => byName.get(n), hasDir, usedPackage: (pkg) => usedPackages.add(pkg) }, importResolutions);
 
   const consulted = new Set<string>();
   const configFiles = new Set<string>();

@@ -59,6 +59,13 @@ export function joinRepo(dir: string, rel: string): string | null {
  * The view of the tsconfig chain starting at `path`: compiler options merged along `extends`
  * (a relative file; a package base is noted as unknown).
  */
+/** The file a tsconfig's relative `extends` entry names, of the paths present. */
+export function extendsTarget(from: string, ext: string, has: (p: string) => boolean): string | undefined {
+  const base = joinRepo(posix.dirname(from), ext);
+  if (base === null) return undefined;
+  return [base, base + '.json', `${base}/tsconfig.json`].find((c) => has(c));
+}
+
 export function tsconfigView(path: string, factsOf: (p: string) => TsconfigFact | undefined, has: (p: string) => boolean): TsconfigView {
   const chain: Array<{ path: string; fact: TsconfigFact }> = [];
   let unknownBase: string | undefined;
@@ -69,9 +76,7 @@ export function tsconfigView(path: string, factsOf: (p: string) => TsconfigFact 
     chain.push({ path: p, fact });
     for (const ext of fact.extends ?? []) {
       if (ext.startsWith('.') || ext.startsWith('/')) {
-        const base = joinRepo(posix.dirname(p), ext);
-        const cand = base === null ? [] : [base, base + '.json', `${base}/tsconfig.json`];
-        const found = cand.find((c) => has(c));
+        const found = extendsTarget(p, ext, has);
         if (found) visit(found, depth + 1);
         else unknownBase = ext;
       } else unknownBase = ext;
@@ -244,9 +249,108 @@ function subpathTargets(pkg: WorkspacePackage, sub: string): string[] {
 /** Compiled output directories a package's entry commonly points into, when no tsconfig names one. */
 const OUTPUT_DIRS = new Set(['dist', 'lib', 'build', 'out']);
 
+/** A resolution kept from commit to commit, with what it depended on. */
+interface KeptResolution {
+  r: Resolved;
+  /** The paths whose presence it tested, as `tryFile` bases. */
+  bases: string[];
+  /** It went through a workspace package (and so looked at which directories exist). */
+  usesDirs: boolean;
+  /** The workspace package it went into (reported again on every reuse). */
+  pkg?: { name: string; file: string };
+}
+
+/**
+ * Resolutions kept across the commits of one history walk. A resolution depends on the presence
+ * of the paths it tested (all of them `tryFile` bases with an extension or an index file), on the
+ * tsconfig files and package.json files of the tree (the context: when they change, everything
+ * is dropped) and, through a workspace package, on which directories exist. At each full locate,
+ * the paths the walk changed since the last one drop the resolutions that tested them.
+ */
+export class ResolutionMemo {
+  private readonly kept = new Map<string, KeptResolution>();
+  private readonly byBase = new Map<string, Set<string>>();
+  private context: string | null = null;
+  private walkId: object | null = null;
+  /** Paths changed since the last `begin`; null when unknown (everything is dropped then). */
+  private pending: string[] | null = null;
+  private dirs: ReadonlySet<string> = new Set();
+  /** Resolutions reused and resolutions worked out (for tests). */
+  reused = 0;
+  resolved = 0;
+
+  /** Called at every commit of a walk (full locate or not), with the paths it changed. */
+  note(walk: { id: object; changed: readonly string[] } | undefined): void {
+    if (!walk || walk.id !== this.walkId || this.pending === null) {
+      this.walkId = walk?.id ?? null;
+      this.pending = null;
+      return;
+    }
+    for (const p of walk.changed) this.pending.push(p);
+  }
+
+  /** Start a full locate: keep what still holds under this context and these directories. */
+  begin(context: string, dirs: ReadonlySet<string>): void {
+    const pending = this.pending;
+    if (pending === null || context !== this.context || this.kept.size > MAX_KEPT) this.clear();
+    else {
+      let dirsChanged = false;
+      for (const q of pending) {
+        for (const b of probingBases(q)) this.drop(b);
+        for (let d = posix.dirname(q); d !== '.' && !dirsChanged; d = posix.dirname(d)) if (this.dirs.has(d) !== dirs.has(d)) dirsChanged = true;
+      }
+      if (dirsChanged) for (const [k, e] of this.kept) if (e.usesDirs) this.kept.delete(k);
+    }
+    this.context = context;
+    this.dirs = dirs;
+    this.pending = this.walkId ? [] : null;
+  }
+
+  get(key: string): KeptResolution | undefined {
+    return this.kept.get(key);
+  }
+
+  set(key: string, e: KeptResolution): void {
+    this.kept.set(key, e);
+    for (const b of e.bases) {
+      let s = this.byBase.get(b);
+      if (!s) this.byBase.set(b, (s = new Set()));
+      s.add(key);
+    }
+  }
+
+  private drop(base: string): void {
+    const keys = this.byBase.get(base);
+    if (!keys) return;
+    for (const k of keys) this.kept.delete(k);
+    this.byBase.delete(base);
+  }
+
+  private clear(): void {
+    this.kept.clear();
+    this.byBase.clear();
+  }
+}
+
+/** Resolutions kept at most (a walk over very many distinct import sites starts afresh). */
+const MAX_KEPT = 500_000;
+
+/** The `tryFile` bases whose outcome depends on whether `q` exists. */
+export function probingBases(q: string): string[] {
+  const out = [q];
+  for (const e of EXTENSIONS) if (q.endsWith(e)) out.push(q.slice(0, -e.length));
+  for (const [js, tss] of Object.entries(JS_TO_TS)) for (const t of tss) if (q.endsWith(t)) out.push(q.slice(0, -t.length) + js);
+  const slash = q.lastIndexOf('/');
+  const name = q.slice(slash + 1);
+  if (EXTENSIONS.some((e) => name === `index${e}`)) out.push(slash < 0 ? '' : q.slice(0, slash));
+  return out;
+}
+
 /** Resolves import specifiers of the project's files against one commit's paths. */
 export class ModuleResolver {
   private readonly memo = new Map<string, Resolved>();
+  /** While a resolution for `shared` is worked out: what it depends on. */
+  private probes: KeptResolution | null = null;
 
   /**
    * `packages` gives the repository's own packages of a name (a bare specifier naming one resolves
@@ -260,6 +364,8 @@ export class ModuleResolver {
       hasDir: (d: string) => boolean;
       usedPackage?: (pkg: WorkspacePackage) => void;
     },
+    /** Resolutions kept from earlier commits (`ResolutionMemo`); its `begin` was called for this commit. */
+    private readonly shared?: ResolutionMemo,
   ) {}
 
   /**
@@ -270,6 +376,7 @@ export class ModuleResolver {
    */
   private packageFile(pkg: WorkspacePackage, sub: string): string | undefined {
     const ws = this.workspace!;
+    if (this.probes) this.probes.usesDirs = true;
     const targets = sub ? subpathTargets(pkg, sub) : [...pkg.entries, 'index'];
     const ts = this.tsconfigOf(pkg.file);
     for (const t of targets) {
@@ -292,6 +399,7 @@ export class ModuleResolver {
   }
 
   private tryFile(base: string): string | undefined {
+    this.probes?.bases.push(base);
     const ext = posix.extname(base);
     if (ext && this.has(base) && SOURCE_FILE.test(base)) return base;
     const ts = JS_TO_TS[ext];
@@ -307,11 +415,34 @@ export class ModuleResolver {
   resolve(from: string, spec: string): Resolved {
     const key = `${posix.dirname(from)}\u0000${spec}`;
     let r = this.memo.get(key);
-    if (!r) {
-      r = this.resolveUncached(from, spec);
-      this.memo.set(key, r);
+    if (r) return r;
+    const shared = this.shared;
+    if (shared) {
+      const kept = shared.get(key);
+      const pkg = kept?.pkg ? this.workspace?.packages(kept.pkg.name)?.find((p) => p.file === kept.pkg!.file) : undefined;
+      if (kept && (!kept.pkg || pkg)) {
+        if (pkg) this.workspace!.usedPackage?.(pkg);
+        shared.reused++;
+        this.memo.set(key, kept.r);
+        return kept.r;
+      }
+      this.probes = { r: { kind: 'external', module: spec }, bases: [], usesDirs: false };
+    }
+    r = this.resolveUncached(from, spec);
+    this.memo.set(key, r);
+    if (shared) {
+      const e = this.probes!;
+      this.probes = null;
+      e.r = r;
+      shared.resolved++;
+      shared.set(key, e);
     }
     return r;
+  }
+
+  private used(pkg: WorkspacePackage): void {
+    if (this.probes) this.probes.pkg = { name: pkg.name, file: pkg.file };
+    this.workspace!.usedPackage?.(pkg);
   }
 
   private resolveUncached(from: string, spec: string): Resolved {
@@ -357,11 +488,11 @@ export class ModuleResolver {
       for (const pkg of pkgs) {
         const found = this.packageFile(pkg, bare.sub);
         if (found) {
-          this.workspace!.usedPackage?.(pkg);
+          this.used(pkg);
           return { kind: 'file', path: found };
         }
       }
-      this.workspace!.usedPackage?.(pkgs[0]!);
+      this.used(pkgs[0]!);
       return { kind: 'missing', path: joinRepo(pkgs[0]!.dir, bare.sub) ?? spec };
     }
     return { kind: 'external', module: spec };
