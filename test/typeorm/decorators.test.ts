@@ -114,6 +114,19 @@ describe("a project's own decorators", () => {
     expect(bad.diagnostics.map((x) => x.code)).toContain('typeorm/bad-decorator-option');
   });
 
+  it('a project class decorator beside @Entity says nothing; on a class that is no entity it is reported', async () => {
+    const files = {
+      'src/use-dto.ts': "export function UseDto(dto: new () => object): ClassDecorator {\n  return (ctor) => {\n    (ctor.prototype as { dtoClass?: unknown }).dtoClass = dto;\n  };\n}\n",
+      'src/tool.ts': "import { Column, Entity, PrimaryGeneratedColumn } from 'typeorm';\nimport { UseDto } from './use-dto';\n\nclass ToolDto {}\n\n@UseDto(ToolDto)\nexport abstract class Lendable {\n  @PrimaryGeneratedColumn()\n  id: number;\n}\n\n@Entity()\n@UseDto(ToolDto)\nexport class Tool extends Lendable {\n  @Column()\n  name: string;\n}\n",
+    };
+    const r = await runAdapter(files);
+    expect(r.snapshot!.tables.map((t) => [t.name, t.columns.map((c) => c.name)])).toEqual([['tool', ['id', 'name']]]);
+    expect(compareWithOracle(r.snapshot!, await oracle(files, { strict: false }))).toEqual([]);
+    const found = r.diagnostics.filter((x) => x.code === 'typeorm/unresolved-decorator');
+    expect(found.map((x) => [x.file, x.line])).toEqual([['src/tool.ts', 6]]);
+    expect(found[0]!.message).toContain('--typeorm-decorator UseDto=Entity');
+  });
+
   it('an entity decorator of the project can be declared too', async () => {
     const files = {
       'src/model.ts': "import { Column, PrimaryGeneratedColumn } from 'typeorm';\nimport { Model } from './model-registry';\n\n@Model('workshops')\nexport class Workshop {\n  @PrimaryGeneratedColumn()\n  id: number;\n\n  @Column()\n  name: string;\n}\n",

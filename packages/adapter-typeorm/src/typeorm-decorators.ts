@@ -325,7 +325,10 @@ export class DecoratorReader {
     }
     const { decos, unresolved } = this.resolveUses(cls.decorators, file);
     for (const d of decos) this.applyClass(args, d, file, cls.line, cls);
-    for (const u of unresolved) {
+    // what the flag would make of an unresolved class decorator, an entity, the class already is
+    // (one that registers a DTO, a GraphQL type or a cache name beside @Entity): nothing to say
+    const isEntity = decos.some((d) => ENTITY_DECORATORS.has(d.name));
+    if (!isEntity) for (const u of unresolved) {
       this.project.report(`uc\u0000${file}\u0000${u.use.line}`, {
         severity: 'info', code: 'typeorm/unresolved-decorator', file, line: u.use.line,
         message: `class decorator @${u.use.n} on ${cls.name} does not resolve to a TypeORM decorator (${u.why}); if it stands for one, say so: --typeorm-decorator ${u.use.n}=Entity`,
@@ -702,6 +705,9 @@ export class DecoratorReader {
     return a;
   }
 }
+
+/** TypeORM's class decorators that make a class an entity (or a view). */
+const ENTITY_DECORATORS = new Set(['Entity', 'ChildEntity', 'ViewEntity']);
 
 /** Decorators that make a property part of the table (columns, relations, embedded). */
 const PHYSICAL = new Set([
