@@ -193,7 +193,7 @@ function initPaths(options: KnexOptions): string[] {
  * `sortDirsSeparately`), and the project files they import.
  */
 export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOptions): VersionPlan {
-  const diagnostics: Diagnostic[] = [];
+  const diagnostics: Diagnostic[] = [...options.diagnostics];
   const all = input.files.map((f) => f.path);
   let pathSet: Set<string> | null = null;
   const paths = { has: (p: string): boolean => (pathSet ??= new Set([...all, ...input.missing])).has(p) };
@@ -569,7 +569,7 @@ export class KnexSession implements AdapterSession<KnexFacts> {
           continue;
         }
       }
-      const replay = new Replay(state, plan.dialect, plan.files, plan.client, plan.schema);
+      const replay = new Replay(state, plan.dialect, plan.files, plan.client, plan.schema, this.options.assume);
       if (e.file) {
         replay.runFile(e.file, e.role);
         this.replayed++;

@@ -1,4 +1,4 @@
-import type { AdapterOption, AdapterOptionValues } from '@schema-strata/core/extract';
+import type { AdapterOption, AdapterOptionValues, Diagnostic } from '@schema-strata/core/extract';
 import { dialectOf, DIALECTS, KNEX_CLIENT_NAMES, type Dialect } from './knex-types.js';
 
 /** Values of --knex-client besides auto: the type families, then the other client names Knex accepts. */
@@ -33,6 +33,12 @@ export const KNEX_OPTIONS: readonly AdapterOption[] = Object.freeze([
     default: 'auto',
   },
   {
+    flag: 'knex-assume',
+    description:
+      "NAME=VALUE: a value the migrations read from something the project never declares (an environment variable, an application's global settings object), as the replay's diagnostics name it (process.env.DB_CLIENT=pg, APP.config.db.type=postgres), so that conditions and switches on it take the branch that value takes; VALUE is a JSON number, true, false, null or a quoted string, else the text as it stands (always the text under process.env, as Node gives it); repeat for several",
+    type: 'string[]',
+  },
+  {
     flag: 'knex-schema',
     description:
       "database schema that unqualified table names resolve to, as the connection's searchPath sets it (its first schema): tables in it get no namespace, so that code moving between withSchema(NAME) and unqualified names keeps their ids; default: the first schema of the knexfile's searchPath (PostgreSQL), else the client's own (public, dbo, main)",
@@ -50,6 +56,45 @@ export interface KnexOptions {
   clientName?: string;
   /** The schema unqualified names resolve to (--knex-schema), when not the client's default. */
   schema?: string;
+  /** Values of reads from undeclared names (--knex-assume), by dotted path. */
+  assume: ReadonlyMap<string, AssumedValue>;
+  /** Malformed option values, reported with every version. */
+  diagnostics: Diagnostic[];
+}
+
+export type AssumedValue = string | number | boolean | null;
+
+const ASSUME = /^\s*([A-Za-z_$][\w$]*(?:\.[\w$]+)*)\s*=(.*)$/s;
+
+/** The --knex-assume entries: path -> value; a malformed entry is a diagnostic. */
+function readAssumptions(raw: unknown, diagnostics: Diagnostic[]): Map<string, AssumedValue> {
+  const out = new Map<string, AssumedValue>();
+  const list = Array.isArray(raw) ? raw : typeof raw === 'string' && raw ? [raw] : [];
+  for (const entry of list) {
+    const m = typeof entry === 'string' ? ASSUME.exec(entry) : null;
+    if (!m) {
+      diagnostics.push({
+        severity: 'error', code: 'knex/bad-assume-option',
+        message: `--knex-assume ${String(entry)}: expected NAME=VALUE, NAME a dotted path such as process.env.DB_CLIENT or APP.config.db.type`,
+      });
+      continue;
+    }
+    const path = m[1]!;
+    const text = m[2]!.trim();
+    const json = path.startsWith('process.env.') ? undefined : jsonScalar(text);
+    out.set(path, json === undefined ? text : json);
+  }
+  return out;
+}
+
+/** A JSON scalar's value (a number, true, false, null, a quoted string), else undefined. */
+function jsonScalar(text: string): AssumedValue | undefined {
+  try {
+    const v: unknown = JSON.parse(text);
+    return v === null || typeof v === 'string' || typeof v === 'number' || typeof v === 'boolean' ? v : undefined;
+  } catch {
+    return undefined;
+  }
 }
 
 /** The adapter's options from the values core passes (CLI flags or the configuration file). */
@@ -59,7 +104,11 @@ export function knexOptions(values: AdapterOptionValues): KnexOptions {
   const env = values['knex-environment'];
   const client = values['knex-client'];
   const schema = values['knex-schema'];
+  const diagnostics: Diagnostic[] = [];
+  const assume = readAssumptions(values['knex-assume'], diagnostics);
   return {
+    assume,
+    diagnostics,
     init: Array.isArray(init) ? init : typeof init === 'string' && init ? [init] : [],
     order: order === 'natural' ? 'natural' : 'name',
     ...(typeof env === 'string' && env ? { environment: env } : {}),

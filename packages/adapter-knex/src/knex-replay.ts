@@ -17,6 +17,7 @@ import {
   type Dialect,
   type KnexClientInfo,
 } from './knex-types.js';
+import type { AssumedValue } from './knex-config.js';
 
 /*
  * The replay of one migration's facts against the schema as it stands: an interpreter of the
@@ -133,6 +134,11 @@ class Namespace {
  */
 class ClientRole extends Opaque {}
 class ConfigRole extends Opaque {}
+/**
+ * A read from a name the project never declares (`process.env.DB_CLIENT`, an application's
+ * global settings object): its text is the dotted path, which --knex-assume may give a value.
+ */
+class GlobalRead extends Opaque {}
 
 interface ForeignData {
   columns: string[];
@@ -262,6 +268,8 @@ export class Replay {
   readonly counters: ReplayCounters = { rawStatements: 0, rawSchemaStatements: 0, unresolved: 0 };
   private file: FileContext | null = null;
   private depth = 0;
+  /** While a condition or a switch's value is worked out: the reads that were not known (for the diagnostic's hint). */
+  private unknownReads: string[] | null = null;
 
   constructor(
     state: SchemaState,
@@ -271,6 +279,8 @@ export class Replay {
     private readonly client?: KnexClientInfo,
     /** The schema unqualified names resolve to (the connection's search path), when not the dialect's default. */
     private readonly schema?: string,
+    /** Values of reads from undeclared names, by dotted path (--knex-assume). */
+    private readonly assume: ReadonlyMap<string, AssumedValue> = NO_ASSUMPTIONS,
   ) {
     // the state's maps are not changed: each is copied on its first write
     this.tables = new TrackedMap(state.tables, (m) => new PMap(m));
@@ -354,7 +364,9 @@ export class Replay {
         this.exec(st.body, new Frame(frame.file, frame));
         return null;
       case 'switch': {
+        const outer = this.startNoting();
         const on = this.value(st.on, frame);
+        const reads = this.stopNoting(outer);
         const known = on === null || ['string', 'number', 'boolean'].includes(typeof on);
         let start = known ? st.cases.findIndex((c) => c.test !== undefined && this.value(c.test, frame) === on) : -1;
         if (start < 0 && known) start = st.cases.findIndex((c) => c.test === undefined);
@@ -362,7 +374,7 @@ export class Replay {
           // not known: the first clause with statements, as for an if whose condition is not known
           start = st.cases.findIndex((c) => c.body.some((x) => x.k !== 'break'));
           if (st.cases.some((c) => mayChangeSchema(c.body))) {
-            this.info('knex/condition-unknown', `the value of a switch (${valText(st.on)}) is not known statically; its first clause is replayed`, st.line);
+            this.info('knex/condition-unknown', `the value of a switch (${valText(st.on)}) is not known statically; its first clause is replayed${hint(reads)}`, st.line);
           }
         }
         if (start < 0) return null;
@@ -375,12 +387,14 @@ export class Replay {
         return null;
       }
       case 'if': {
+        const outer = this.startNoting();
         const c = this.cond(st.cond, frame);
+        const reads = this.stopNoting(outer);
         if (c === undefined) {
           // (a branch that returns or breaks decides whether the statements after the if run)
           const jumps = mayJump(st.then) || mayJump(st.else);
           if (mayChangeSchema(st.then) || mayChangeSchema(st.else) || (jumps && !!body && mayChangeSchema(body.slice(at + 1)))) {
-            this.info('knex/condition-unknown', `condition ${condText(st.cond)} is not known statically; its first branch is replayed`, st.line);
+            this.info('knex/condition-unknown', `condition ${condText(st.cond)} is not known statically; its first branch is replayed${hint(reads)}`, st.line);
           }
           return this.exec(st.then, new Frame(frame.file, frame));
         }
@@ -495,7 +509,7 @@ export class Replay {
     if ('imp' in v) return this.importValue(frame.file, v.imp, v.name, v.path, depth + 1);
     if ('local' in v) {
       const got = frame.lookup(v.local);
-      let cur: Runtime = got.found ? got.value : new Opaque(v.local);
+      let cur: Runtime = got.found ? got.value : this.globalRead(v.local);
       for (const k of v.path ?? []) cur = this.member(cur, k, depth + 1);
       return cur;
     }
@@ -540,7 +554,32 @@ export class Replay {
       return out;
     }
     if ('undef' in v) return undefined;
+    // a name the file never declares (the parse leaves it as its text), and process.env.NAME
+    if ('expr' in v && GLOBAL_NAME.test(v.expr)) return this.globalRead(v.expr);
+    if ('env' in v) return this.globalRead(`process.env.${v.env}`);
     return new Opaque(valText(v));
+  }
+
+  /** Note the unknown reads from here on (see `unknownReads`); returns what was being noted before. */
+  private startNoting(): string[] | null {
+    const outer = this.unknownReads;
+    this.unknownReads = [];
+    return outer;
+  }
+
+  /** The reads noted since `startNoting`, which gave `outer`. */
+  private stopNoting(outer: string[] | null): string[] {
+    const reads = this.unknownReads ?? [];
+    this.unknownReads = outer;
+    return reads;
+  }
+
+  /** A read from an undeclared name: the value --knex-assume gives its path, else not known (and noted, see `unknownReads`). */
+  private globalRead(path: string): Runtime {
+    const v = this.assume.get(path);
+    if (v !== undefined) return v;
+    this.unknownReads?.push(path);
+    return new GlobalRead(path);
   }
 
   private member(base: Runtime, key: Runtime, depth: number): Runtime {
@@ -549,11 +588,18 @@ export class Replay {
       if (c && key === 'dialect') return c.dialect;
       if (c && key === 'driverName') return c.driverName;
       if (key === 'config') return new ConfigRole(`${base.text}.config`);
+      if (!c) this.unknownReads?.push(CLIENT_READ);
       return new Opaque(`${base.text}.${String(key)}`);
     }
     if (base instanceof ConfigRole) {
       if (this.client && key === 'client') return this.client.configClient;
+      if (!this.client) this.unknownReads?.push(CLIENT_READ);
       return new Opaque(`${base.text}.${String(key)}`);
+    }
+    if (base instanceof GlobalRead && (typeof key === 'string' || typeof key === 'number')) {
+      const path = `${base.text}.${key}`;
+      // (`.client` of an unknown value is a knex instance's, unless the user gave it a value)
+      if (key !== 'client' || this.assume.has(path)) return this.globalRead(path);
     }
     if (key === 'client' && (base instanceof KnexRole || base instanceof Opaque)) return new ClientRole(base instanceof Opaque ? `${base.text}.client` : 'knex.client');
     if (base instanceof Namespace) return typeof key === 'string' ? this.exportValue(base.file, key, depth) : new Opaque('?');
@@ -1501,6 +1547,25 @@ function callbackMayChange(c: { args?: Arg[] }): boolean {
 }
 
 /** A value known statically and compared by identity: a literal, null or undefined. */
+const NO_ASSUMPTIONS: ReadonlyMap<string, AssumedValue> = new Map();
+/** An identifier (the parse's text of a name the file does not declare; `function` is its text of a method). */
+const GLOBAL_NAME = /^(?!function$)[A-Za-z_$][\w$]*$/;
+/** Noted among the unknown reads when `knex.client` is read and the run's client is not known. */
+const CLIENT_READ = '\u0000client';
+
+/**
+ * What a condition-unknown diagnostic adds: the flag that decides the reads it could not know
+ * (--knex-client for knex.client, --knex-assume for the longest paths read from undeclared names).
+ */
+function hint(reads: readonly string[]): string {
+  const paths = [...new Set(reads.filter((r) => r !== CLIENT_READ))];
+  const longest = paths.filter((p) => !paths.some((q) => q.startsWith(`${p}.`)));
+  const says: string[] = [];
+  if (reads.includes(CLIENT_READ)) says.push('--knex-client CLIENT');
+  for (const p of longest.slice(0, 3)) says.push(`--knex-assume ${p}=VALUE`);
+  return says.length > 0 ? ` (to decide it, say what it reads: ${says.join(', ')})` : '';
+}
+
 function known(x: Runtime): boolean {
   return x === null || x === undefined || typeof x === 'string' || typeof x === 'number' || typeof x === 'boolean';
 }
