@@ -196,7 +196,7 @@ describe("the application's data source, not a test helper's", () => {
   it('says so when the test helpers disagree on the type', async () => {
     const r = await runAdapter({ ...files, 'integration-tests/helpers/pg.ts': "import { DataSource } from 'typeorm';\n\nexport const pgDb = new DataSource({ type: 'postgres', entities: ['src/entity/*.ts'] });\n" });
     const d = r.diagnostics.find((x) => x.code === 'typeorm/several-data-sources')!;
-    expect(d.message).toBe('data sources of several types (sqlite, postgres); the settings of src/data-source.ts are used (a type decided at run time), not those of test code');
+    expect(d.message).toBe('data sources of several types (sqlite, postgres); the settings of src/data-source.ts are used (a type decided at run time), not those of test code; --typeorm-database chooses another');
     // PostgreSQL's rules, as the database-unknown diagnostic says (SQLite's would make it a datetime)
     expect(r.snapshot!.tables[0]!.columns.find((c) => c.name === 'joined_on')!.type).toEqual({ kind: 'timestamp', withZone: false });
   });
@@ -225,5 +225,63 @@ describe("a configuration of another tool, with `entities` and a type TypeORM ha
     // MySQL's rule for Date (TypeORM's MysqlDriver normalises it to datetime; types.test.ts checks the mapping)
     expect(r.snapshot!.tables[0]!.columns.find((c) => c.name === 'joinedOn')!.nativeType).toBe('Date');
     expect(r.snapshot!.tables[0]!.columns.find((c) => c.name === 'joinedOn')!.type.kind).toBe('datetime');
+  });
+});
+
+describe('options of one database per branch, built on shared ones that hold the entities', () => {
+  // a pattern of a real service: `{ ...common, type: 'mysql' }` or `{ ...common, type: 'sqlite' }`,
+  // chosen by the environment inside a getter
+  const files = {
+    'package.json': '{ "name": "coop" }',
+    'src/bootstrap/data-source.ts':
+      "import { DataSource } from 'typeorm';\nimport { Member } from '../entity/member';\n\nexport class AppDataSource {\n  private ds: DataSource | undefined;\n\n  get dataSource(): DataSource {\n    const isMySql = process.env.COOP_DB === 'mysql';\n    const common = {\n      entities: [Member],\n      migrations: [`${__dirname}/../migrations/${isMySql ? 'mysql' : 'sqlite'}/*.js`],\n      logging: false,\n    };\n    if (isMySql) {\n      const mysqlOptions = { ...common, type: 'mysql' as const, charset: 'utf8mb4', host: process.env.COOP_DB_HOST };\n      this.ds = new DataSource(mysqlOptions);\n    } else {\n      const sqliteOptions = { ...common, type: 'sqlite' as const, database: process.env.COOP_DB_PATH ?? 'coop.sqlite' };\n      this.ds = new DataSource(sqliteOptions);\n    }\n    return this.ds;\n  }\n}\n",
+    'src/entity/member.ts':
+      "import { Column, Entity, PrimaryGeneratedColumn } from 'typeorm';\n\n@Entity('members')\nexport class Member {\n  @PrimaryGeneratedColumn()\n  id: number;\n\n  @Column({ type: 'datetime' })\n  joinedAt: Date;\n\n  @Column({ type: 'tinyint' })\n  verified: number;\n\n  @Column()\n  lastSeen: Date;\n}\n",
+  };
+
+  it("takes the first branch's database (MySQL here) and says so; --typeorm-database chooses another", async () => {
+    // reference: TypeORM's MysqlDriver and AbstractSqliteDriver normalizeType
+    const self = { options: { type: 'mysql' }, uuidColumnTypeSuported: false, version: '8.0.0' };
+    const mysql = (t: unknown): string => require('typeorm/driver/mysql/MysqlDriver').MysqlDriver.prototype.normalizeType.call(self, { type: t });
+    const sqlite = (t: unknown): string => require('typeorm/driver/sqlite-abstract/AbstractSqliteDriver').AbstractSqliteDriver.prototype.normalizeType.call(self, { type: t });
+    const r = await runAdapter(files);
+    expect(r.diagnostics.map((d) => [d.code, d.message])).toEqual([
+      ['typeorm/several-data-sources', 'data sources of several types (mysql, sqlite); the settings of src/bootstrap/data-source.ts are used (mysql); --typeorm-database chooses another'],
+    ]);
+    const cols = r.snapshot!.tables[0]!.columns;
+    expect(cols.map((c) => c.name)).toEqual(['id', 'joinedAt', 'verified', 'lastSeen']);
+    expect(cols.find((c) => c.name === 'lastSeen')!.type.kind).toBe('datetime');
+    expect(mysql(Date)).toBe('datetime');
+    const other = await runAdapter(files, { 'typeorm-database': 'sqlite' });
+    expect(other.diagnostics.map((d) => d.code)).toEqual(['typeorm/several-data-sources']);
+    expect(sqlite(Date)).toBe('datetime');
+    expect(sqlite('tinyint')).toBe('tinyint');
+  });
+
+  it('with --path, a data source among the selected files gives the database; the entities are the selection', async () => {
+    const more = {
+      ...files,
+      'src/bootstrap/data-source.ts': files['src/bootstrap/data-source.ts']
+        .replace("import { Member } from '../entity/member';\n", "import { SnakeNamingStrategy } from 'typeorm-naming-strategies';\nimport { Member } from '../entity/member';\nimport { Loan } from '../entity/loan';\n")
+        .replace('entities: [Member],', 'entities: [Member, Loan],\n      namingStrategy: new SnakeNamingStrategy(),'),
+      'src/entity/loan.ts': "import { Entity, PrimaryGeneratedColumn } from 'typeorm';\n\n@Entity('loans')\nexport class Loan {\n  @PrimaryGeneratedColumn()\n  id: number;\n}\n",
+    };
+    const r = await runAdapter(more, {}, ['src/bootstrap/data-source.ts', 'src/entity/member.ts']);
+    // (the data source is consulted: read for its settings, its own list of entities selects nothing)
+    expect(r.located.files).toEqual(['src/entity/member.ts']);
+    expect(r.located.consulted).toContain('src/bootstrap/data-source.ts');
+    expect(r.diagnostics.map((d) => d.code)).toEqual(['typeorm/several-data-sources']);
+    expect(r.snapshot!.tables.map((t) => t.name)).toEqual(['members']);
+    // the naming of the data source (the community package's snake case: checked against it in naming tests)
+    expect(r.snapshot!.tables[0]!.columns.map((c) => c.name)).toEqual(['id', 'joined_at', 'verified', 'last_seen']);
+    expect(r.snapshot!.tables[0]!.columns.find((c) => c.name === 'last_seen')!.type.kind).toBe('datetime');
+  });
+
+  it('with no type read at all, an unsupported type says that PostgreSQL is the default and names the flag', async () => {
+    const noType = { ...files, 'src/bootstrap/data-source.ts': "import { DataSource } from 'typeorm';\nimport { Member } from '../entity/member';\n\nexport const ds = new DataSource({ entities: [Member], logging: false, ...JSON.parse(process.env.COOP_DB_OPTIONS ?? '{}') });\n" };
+    const r = await runAdapter(noType);
+    const d = r.diagnostics.filter((x) => x.code === 'typeorm/unsupported-type');
+    expect(d.map((x) => x.line)).toEqual([9, 12]);
+    expect(d[0]!.message).toContain("is not a column type of postgres (no data source's type was read: PostgreSQL's rules are the default; --typeorm-database names the database)");
   });
 });

@@ -318,6 +318,8 @@ class Builder {
   constructor(
     files: Map<string, TypeormFileFacts>, readonly settings: TypeormSettings, readonly cache: AssemblyCache, delta?: VersionDelta,
     packages?: ReadonlyMap<string, readonly WorkspacePackage[]>,
+    /** Data source files read for their settings only (under --path): their entities select nothing. */
+    private readonly settingsOnlyFiles: ReadonlySet<string> = new Set(),
   ) {
     this.project = new Project(files, delta, packages);
     this.reader = new DecoratorReader(this.project, settings);
@@ -444,7 +446,7 @@ class Builder {
     }
     const distinctTypes = new Set(configs.map((c) => get(c.o, 'type')).filter((t): t is string => typeof t === 'string'));
     if (distinctTypes.size > 1) {
-      this.diagnostics.push({ severity: 'info', code: 'typeorm/several-data-sources', message: `data sources of several types (${[...distinctTypes].join(', ')}); the settings of ${withType!.file} are used (${typeof type === 'string' ? type : 'a type decided at run time'})${own.length < configs.length ? ', not those of test code' : ''}` });
+      this.diagnostics.push({ severity: 'info', code: 'typeorm/several-data-sources', message: `data sources of several types (${[...distinctTypes].join(', ')}); the settings of ${withType!.file} are used (${typeof type === 'string' ? type : 'a type decided at run time'})${own.length < configs.length ? ', not those of test code' : ''}${this.settings.database === 'auto' ? '; --typeorm-database chooses another' : ''}` });
     }
     const t = this.settings.database !== 'auto' ? this.settings.database : typeof type === 'string' ? type : undefined;
     const family = driverFamily(t);
@@ -459,26 +461,37 @@ class Builder {
     if (family === 'other') this.diagnostics.push({ severity: 'info', code: 'typeorm/database-rules', message: `database type ${t}: PostgreSQL's type rules are used` });
     this.mapped = mappedTypes(family);
     // naming strategy
+    // (options that add a type to shared ones, `{ ...common, type }`, may not show what the shared
+    // ones set when they are out of reach: then the shared options of the same file say it)
+    const settingOf = (key: string): { value: E; from: (typeof configs)[number] } | undefined => {
+      if (!withType) return undefined;
+      const own = get(withType.o, key);
+      if (own !== undefined || !withType.cfg.settingsOnly) return own === undefined ? undefined : { value: own, from: withType };
+      const shared = configs.find((c) => c.file === withType.file && !c.cfg.settingsOnly && get(c.o, key) !== undefined);
+      return shared ? { value: get(shared.o, key), from: shared } : undefined;
+    };
     let naming: NamingRules = namingRules('default');
     if (this.settings.naming !== 'auto') naming = namingRules(this.settings.naming);
-    else if (withType) {
-      const ns = get(withType.o, 'namingStrategy');
-      if (ns !== undefined) naming = this.namingOf(ns, withType.file, withType.cfg.line);
+    else {
+      const ns = settingOf('namingStrategy');
+      if (ns) naming = this.namingOf(ns.value, ns.from.file, ns.from.cfg.line);
     }
-    const prefix = withType ? get(withType.o, 'entityPrefix') : undefined;
-    const schema = withType ? get(withType.o, 'schema') : undefined;
+    const prefix = settingOf('entityPrefix')?.value;
+    const schema = settingOf('schema')?.value;
     this.ds = {
       family, naming, entityPrefix: typeof prefix === 'string' ? prefix : '',
       ...(t ? { type: t } : {}),
       ...(typeof schema === 'string' ? { schema } : {}),
     };
     // entity selection (every configuration's, together)
-    if (configs.length > 0) {
+    if (configs.some(({ file, cfg }) => !cfg.settingsOnly && !this.settingsOnlyFiles.has(file))) {
       const sources = [...files.keys()].filter((p) => files.get(p)!.kind === 'source');
       const globs: string[] = [];
       const keys = new Set<string>();
       let open = false;
       for (const { file, cfg, o } of configs) {
+        // (options that only add a type to shared ones, and data sources read for their settings)
+        if (cfg.settingsOnly || this.settingsOnlyFiles.has(file)) continue;
         if (!isObjE(o) || o.open) {
           open = true;
           continue;
@@ -1390,7 +1403,7 @@ class Builder {
     if (!isSupportedType(family, normalized, written) && written !== undefined) {
       this.project.report(`ut\u0000${c.origin.file}\u0000${c.origin.line}\u0000${c.propertyPath}`, {
         severity: 'warning', code: 'typeorm/unsupported-type', file: c.origin.file, line: c.origin.line,
-        message: `the type of ${ormName ? ormName + '.' : ''}${c.propertyPath} (${typeof written === 'string' ? written : written.ctor.replace(/^class:/, '')}) is not a column type of ${this.ds.type ?? 'postgres'}; TypeORM would refuse the data source`,
+        message: `the type of ${ormName ? ormName + '.' : ''}${c.propertyPath} (${typeof written === 'string' ? written : written.ctor.replace(/^class:/, '')}) is not a column type of ${this.ds.type ?? "postgres (no data source's type was read: PostgreSQL's rules are the default; --typeorm-database names the database)"}; TypeORM would refuse the data source`,
       });
     }
     if (written === undefined) {
@@ -2004,6 +2017,9 @@ export class TypeormAssembler {
   /** The workspace packages of the current version (the package.json files its locate step consulted), by name, and their key. */
   private packages: ReadonlyMap<string, readonly WorkspacePackage[]> = new Map();
   private packagesKey = '';
+  /** Data source files read for their settings only (consulted by the locate step, under --path), and their key. */
+  private settingsOnlyFiles: ReadonlySet<string> = new Set();
+  private settingsOnlyKey = '';
 
   constructor(options: AdapterOptionValues) {
     this.settings = readSettings(options);
@@ -2019,7 +2035,10 @@ export class TypeormAssembler {
     const before = new Map<string, TypeormFileFacts | undefined>();
     let count = 0;
     let added = false;
-    for (const f of input.files) {
+    // (a consulted source file is a data source read for its settings only: see `settingsOnlyFiles`)
+    const consultedSources = (input.consulted ?? []).filter((f) => f.facts?.kind === 'source' && f.facts.configs.length > 0);
+    const settingsOnlyKey = consultedSources.map((f) => f.path).sort().join('\u0000');
+    for (const f of consultedSources.length > 0 ? [...input.files, ...consultedSources] : input.files) {
       if (!f.facts) continue;
       count++;
       const old = files.get(f.path);
@@ -2031,7 +2050,7 @@ export class TypeormAssembler {
     }
     let pathsChanged = added;
     if (added || count !== files.size) {
-      const present = new Set(input.files.filter((f) => f.facts).map((f) => f.path));
+      const present = new Set([...input.files, ...consultedSources].filter((f) => f.facts).map((f) => f.path));
       for (const [p, f] of files) {
         if (present.has(p)) continue;
         changed.push(p);
@@ -2074,8 +2093,13 @@ export class TypeormAssembler {
     if (b) b.advance(files, delta);
     // the data source is read again when what it read changed; what every result depends on is
     // the options, the paths (module resolution), the data source and tsconfig files
+    if (settingsOnlyKey !== this.settingsOnlyKey) {
+      this.settingsOnlyKey = settingsOnlyKey;
+      this.settingsOnlyFiles = new Set(consultedSources.map((f) => f.path));
+      configsChanged = true;
+    }
     if (!b || cache.version === 1 || pathsChanged || configsChanged || packagesChanged || !b.dsResult || !b.project.valid(b.dsResult)) {
-      const nb = new Builder(files, settings, cache, delta, this.packages);
+      const nb = new Builder(files, settings, cache, delta, this.packages, this.settingsOnlyFiles);
       const ds = nb.readDataSourceTracked(files, cache.configFiles);
       const global = JSON.stringify([this.settingsKey, this.pathsKey, this.packagesKey, [...ds.deps].map(([p, f]) => [p, typeof f === 'string' ? f : factId(f)])]);
       if (!b || global !== cache.global) {

@@ -365,13 +365,23 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
 
   const consulted = new Set<string>();
   const configFiles = new Set<string>();
+  // with --path: data source files read for their settings only, handed over as consulted files
+  // (the assembly takes their type and naming, not their entities)
+  const settingsFiles = new Set<string>();
   let roots: string[] = [];
   const sourceOf = (p: string): boolean => SOURCE_FILE.test(p) && !isDeclarationFile(p);
 
   if (req.paths) {
     for (const p of req.paths) {
       if (!sourceOf(p)) continue;
-      if ((await scanOf(p))?.entity) roots.push(p);
+      const scan = await scanOf(p);
+      if (scan?.entity) roots.push(p);
+      // a data source among the selected files gives the database type and the naming (the
+      // entities are the selection's)
+      else if (scan?.config && !isTestPath(p) && ((await factsOf(tree, p))?.configs.length ?? 0) > 0) {
+        configFiles.add(p);
+        settingsFiles.add(p);
+      }
     }
   } else {
     // data source configurations
@@ -389,6 +399,7 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
       const pd = projectDirOf(p, has);
       if (pd.consulted) consulted.add(pd.consulted);
       for (const cfg of facts.configs) {
+        if (cfg.settingsOnly) continue;
         const sel = selectionOf(cfg, p, has, tsconfigFor(p), hasDir, consts);
         // class references: the files their imports name
         for (const ref of sel.refs) {
@@ -456,7 +467,8 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
       if (val.k === 'r') used.add(val.n.split('.')[0]!);
       for (const x of Object.values(val)) if (x && typeof x === 'object') collect(x);
     };
-    for (const cfg of facts.configs) collect(cfg.options);
+    // (with --path, only what the naming strategy uses: the entities are the selection's)
+    for (const cfg of facts.configs) collect(req.paths ? namingStrategyOf(cfg.options) : cfg.options);
     for (const k of facts.consts) if (used.has(k.name)) collect(k.value);
     for (const imp of facts.imports) {
       const names = [...imp.names.map(([local]) => local), ...(imp.def ? [imp.def] : []), ...(imp.ns ? [imp.ns] : [])];
@@ -480,7 +492,10 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
       if (r.kind === 'file') reach(r.path, again ? depth : next);
     }
   }
-  for (const c of configFiles) included.add(c);
+  for (const c of configFiles) {
+    if (settingsFiles.has(c)) consulted.add(c);
+    else included.add(c);
+  }
   // a package that imports were resolved into: its package.json is consulted (the assembly
   // resolves the same imports from it: core hands it the facts of the consulted files, see
   // `readsConsulted`), and the tsconfig files that map its compiled output to its sources are read
@@ -495,4 +510,9 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
     if (v) for (const f of v.files) included.add(f);
   }
   return { files: [...included].sort(), consulted: [...consulted].sort(), searched: SEARCHED };
+}
+
+/** The `namingStrategy` of an options object, as facts (undefined when it has none or is not an object). */
+function namingStrategyOf(options: Value): Value | undefined {
+  return options.k === 'o' ? options.p.find(([k]) => k === 'namingStrategy')?.[1] : undefined;
 }

@@ -2,6 +2,7 @@ import { createRequire } from 'node:module';
 import type { Diagnostic, FileFacts, SourceFile } from '@schema-strata/core/extract';
 import type { ts as TsNamespace } from 'ts-morph';
 import { parsePackageJson, type PackageFact } from './typeorm-modules.js';
+import { DATA_SOURCE_TYPES } from './typeorm-types.js';
 
 /**
  * Per-file facts: what one file says, read from its syntax tree (TypeScript's parser, as ts-morph
@@ -152,6 +153,8 @@ export interface ConfigFact {
   options: Value;
   /** `ormconfig.*`, `.env` or an options object found in source code. */
   source: 'ormconfig' | 'env' | 'code';
+  /** Options that spread shared ones and add a database type: read for the type and naming, not for the entities. */
+  settingsOnly?: true;
 }
 
 export interface ImportFact {
@@ -604,6 +607,18 @@ function findConfigs(r: Reader, facts: TypeormFileFacts): void {
       }
       if ((keys.has('entities') || keys.has('autoLoadEntities')) && CONFIG_KEYS.some((k) => keys.has(k))) {
         facts.configs.push({ line: r.line(n), options: r.value(n), source: 'code' });
+        return;
+      }
+      // `{ ...common, type: 'mysql', ... }`: the options of one database built on shared ones that
+      // hold the entities (one object per database, chosen at run time): its type and naming count
+      const literalType = (p: TsNamespace.ObjectLiteralElementLike): boolean => {
+        if (!ts.isPropertyAssignment(p) || r.propName(p.name) !== 'type') return false;
+        let e = p.initializer;
+        while (ts.isParenthesizedExpression(e) || ts.isAsExpression(e) || ts.isSatisfiesExpression(e)) e = e.expression;
+        return ts.isStringLiteralLike(e) && DATA_SOURCE_TYPES.has(e.text);
+      };
+      if (!keys.has('entities') && n.properties.some((p) => ts.isSpreadAssignment(p)) && n.properties.some(literalType)) {
+        facts.configs.push({ line: r.line(n), options: r.value(n), source: 'code', settingsOnly: true });
         return;
       }
     }
