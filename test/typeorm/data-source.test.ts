@@ -258,23 +258,47 @@ describe('options of one database per branch, built on shared ones that hold the
     expect(sqlite('tinyint')).toBe('tinyint');
   });
 
-  it('with --path, a data source among the selected files gives the database; the entities are the selection', async () => {
+  it('with --path, a data source among the selected files gives the database and the naming, and which selected entities count', async () => {
     const more = {
       ...files,
       'src/bootstrap/data-source.ts': files['src/bootstrap/data-source.ts']
         .replace("import { Member } from '../entity/member';\n", "import { SnakeNamingStrategy } from 'typeorm-naming-strategies';\nimport { Member } from '../entity/member';\nimport { Loan } from '../entity/loan';\n")
         .replace('entities: [Member],', 'entities: [Member, Loan],\n      namingStrategy: new SnakeNamingStrategy(),'),
       'src/entity/loan.ts': "import { Entity, PrimaryGeneratedColumn } from 'typeorm';\n\n@Entity('loans')\nexport class Loan {\n  @PrimaryGeneratedColumn()\n  id: number;\n}\n",
+      // an entity class the data source does not list (TypeORM would not register it)
+      'src/entity/old-member.ts': "import { Entity, PrimaryGeneratedColumn } from 'typeorm';\n\n@Entity('members')\nexport class OldMember {\n  @PrimaryGeneratedColumn()\n  id: number;\n}\n",
     };
-    const r = await runAdapter(more, {}, ['src/bootstrap/data-source.ts', 'src/entity/member.ts']);
-    // (the data source is consulted: read for its settings, its own list of entities selects nothing)
-    expect(r.located.files).toEqual(['src/entity/member.ts']);
+    const r = await runAdapter(more, {}, ['src/bootstrap/data-source.ts', 'src/entity/member.ts', 'src/entity/old-member.ts']);
+    // (the data source is consulted; Loan, which it lists, is not followed, nor reported missing)
+    expect(r.located.files).toEqual(['src/entity/member.ts', 'src/entity/old-member.ts']);
     expect(r.located.consulted).toContain('src/bootstrap/data-source.ts');
     expect(r.diagnostics.map((d) => d.code)).toEqual(['typeorm/several-data-sources']);
     expect(r.snapshot!.tables.map((t) => t.name)).toEqual(['members']);
     // the naming of the data source (the community package's snake case: checked against it in naming tests)
     expect(r.snapshot!.tables[0]!.columns.map((c) => c.name)).toEqual(['id', 'joined_at', 'verified', 'last_seen']);
     expect(r.snapshot!.tables[0]!.columns.find((c) => c.name === 'last_seen')!.type.kind).toBe('datetime');
+  });
+
+  it('a MongoDB data source beside them, for some documents, does not decide; its entities are left out', async () => {
+    const withMongo = {
+      ...files,
+      'src/bootstrap/data-source.ts': files['src/bootstrap/data-source.ts']
+        .replace("import { Member } from '../entity/member';\n", "import { Member } from '../entity/member';\nimport { LoanNote } from '../entity/loan-note';\n")
+        .replace('  get dataSource(): DataSource {', "  get documents(): DataSource {\n    return new DataSource({ type: 'mongodb', host: process.env.COOP_MONGO_HOST, entities: [LoanNote], synchronize: true });\n  }\n\n  get dataSource(): DataSource {"),
+      'src/entity/loan-note.ts': "import { Column, Entity, ObjectId, ObjectIdColumn } from 'typeorm';\n\n@Entity('loan_notes')\nexport class LoanNote {\n  @ObjectIdColumn()\n  id: ObjectId;\n\n  @Column()\n  text: string;\n}\n",
+    };
+    const r = await runAdapter(withMongo);
+    expect(r.failed).toBeUndefined();
+    expect(r.diagnostics.map((d) => [d.code, d.file ?? ''])).toEqual([
+      ['typeorm/several-data-sources', ''],
+      ['typeorm/mongodb-entity', 'src/entity/loan-note.ts'],
+    ]);
+    expect(r.diagnostics[0]!.message).toContain('data sources of several types (mongodb, mysql, sqlite); the settings of src/bootstrap/data-source.ts are used (mysql)');
+    expect(r.snapshot!.tables.map((t) => t.name)).toEqual(['members']);
+    // a MongoDB data source alone is still no relational schema
+    const only = await runAdapter({ ...withMongo, 'src/bootstrap/data-source.ts': "import { DataSource } from 'typeorm';\nimport { LoanNote } from '../entity/loan-note';\n\nexport const ds = new DataSource({ type: 'mongodb', entities: [LoanNote] });\n" });
+    expect(only.failed).toBe(true);
+    expect(only.diagnostics.map((d) => d.code)).toContain('typeorm/mongodb-unsupported');
   });
 
   it('with no type read at all, an unsupported type says that PostgreSQL is the default and names the flag', async () => {

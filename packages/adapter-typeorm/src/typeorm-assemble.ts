@@ -318,8 +318,8 @@ class Builder {
   constructor(
     files: Map<string, TypeormFileFacts>, readonly settings: TypeormSettings, readonly cache: AssemblyCache, delta?: VersionDelta,
     packages?: ReadonlyMap<string, readonly WorkspacePackage[]>,
-    /** Data source files read for their settings only (under --path): their entities select nothing. */
-    private readonly settingsOnlyFiles: ReadonlySet<string> = new Set(),
+    /** Data source files the locate step consulted (under --path): the entities they list that are not selected are not missing. */
+    private readonly consultedDataSources: ReadonlySet<string> = new Set(),
   ) {
     this.project = new Project(files, delta, packages);
     this.reader = new DecoratorReader(this.project, settings);
@@ -438,7 +438,9 @@ class Builder {
     };
     const own = configs.filter((c) => !isTestPath(c.file) && typeOk(c));
     const deciding = own.length > 0 ? own : configs;
-    const withType = deciding.find((c) => typeof get(c.o, 'type') === 'string') ?? deciding[0];
+    // (a MongoDB data source beside a relational one, for some documents, does not decide)
+    const typed = (c: (typeof configs)[number]): boolean => typeof get(c.o, 'type') === 'string';
+    const withType = deciding.find((c) => typed(c) && driverFamily(get(c.o, 'type') as string) !== 'mongodb') ?? deciding.find(typed) ?? deciding[0];
     let type = withType ? get(withType.o, 'type') : undefined;
     if (withType && type !== undefined && typeof type !== 'string') {
       this.diagnostics.push({ severity: 'info', code: 'typeorm/database-unknown', file: withType.file, line: withType.cfg.line, message: `the data source type (${textOf(type)}) depends on run-time configuration; PostgreSQL's type rules are used (set --typeorm-database)` });
@@ -484,14 +486,14 @@ class Builder {
       ...(typeof schema === 'string' ? { schema } : {}),
     };
     // entity selection (every configuration's, together)
-    if (configs.some(({ file, cfg }) => !cfg.settingsOnly && !this.settingsOnlyFiles.has(file))) {
+    if (configs.some(({ cfg }) => !cfg.settingsOnly)) {
       const sources = [...files.keys()].filter((p) => files.get(p)!.kind === 'source');
       const globs: string[] = [];
       const keys = new Set<string>();
       let open = false;
       for (const { file, cfg, o } of configs) {
-        // (options that only add a type to shared ones, and data sources read for their settings)
-        if (cfg.settingsOnly || this.settingsOnlyFiles.has(file)) continue;
+        // (options that only add a type to shared ones select nothing)
+        if (cfg.settingsOnly) continue;
         if (!isObjE(o) || o.open) {
           open = true;
           continue;
@@ -526,6 +528,8 @@ class Builder {
           if (isSymE(item) && item.s.k === 'class') keys.add(classKey(item.s.file, item.s.c.name));
           else if (isSymE(item) && item.s.k === 'schema') keys.add(`schemafact:${item.s.file}#${item.s.s.line}`);
           else if (isSymE(item) && item.s.k === 'missing') {
+            // (a data source consulted under --path lists entities the selection may leave out: not missing)
+            if (this.consultedDataSources.has(file)) continue;
             this.project.report(`dsmissing\u0000${item.s.path}`, {
               severity: 'warning', code: 'typeorm/missing-file', file, line: cfg.line,
               message: `the data source lists ${item.s.name}, imported from ${item.s.spec}, which is not in the tree (${item.s.path})`,
@@ -2017,9 +2021,9 @@ export class TypeormAssembler {
   /** The workspace packages of the current version (the package.json files its locate step consulted), by name, and their key. */
   private packages: ReadonlyMap<string, readonly WorkspacePackage[]> = new Map();
   private packagesKey = '';
-  /** Data source files read for their settings only (consulted by the locate step, under --path), and their key. */
-  private settingsOnlyFiles: ReadonlySet<string> = new Set();
-  private settingsOnlyKey = '';
+  /** Data source files the locate step consulted (under --path), and their key. */
+  private consultedDataSources: ReadonlySet<string> = new Set();
+  private consultedKey = '';
 
   constructor(options: AdapterOptionValues) {
     this.settings = readSettings(options);
@@ -2035,9 +2039,9 @@ export class TypeormAssembler {
     const before = new Map<string, TypeormFileFacts | undefined>();
     let count = 0;
     let added = false;
-    // (a consulted source file is a data source read for its settings only: see `settingsOnlyFiles`)
+    // (a consulted source file is a data source among the files --path selects: see `consultedDataSources`)
     const consultedSources = (input.consulted ?? []).filter((f) => f.facts?.kind === 'source' && f.facts.configs.length > 0);
-    const settingsOnlyKey = consultedSources.map((f) => f.path).sort().join('\u0000');
+    const consultedKey = consultedSources.map((f) => f.path).sort().join('\u0000');
     for (const f of consultedSources.length > 0 ? [...input.files, ...consultedSources] : input.files) {
       if (!f.facts) continue;
       count++;
@@ -2093,13 +2097,13 @@ export class TypeormAssembler {
     if (b) b.advance(files, delta);
     // the data source is read again when what it read changed; what every result depends on is
     // the options, the paths (module resolution), the data source and tsconfig files
-    if (settingsOnlyKey !== this.settingsOnlyKey) {
-      this.settingsOnlyKey = settingsOnlyKey;
-      this.settingsOnlyFiles = new Set(consultedSources.map((f) => f.path));
+    if (consultedKey !== this.consultedKey) {
+      this.consultedKey = consultedKey;
+      this.consultedDataSources = new Set(consultedSources.map((f) => f.path));
       configsChanged = true;
     }
     if (!b || cache.version === 1 || pathsChanged || configsChanged || packagesChanged || !b.dsResult || !b.project.valid(b.dsResult)) {
-      const nb = new Builder(files, settings, cache, delta, this.packages, this.settingsOnlyFiles);
+      const nb = new Builder(files, settings, cache, delta, this.packages, this.consultedDataSources);
       const ds = nb.readDataSourceTracked(files, cache.configFiles);
       const global = JSON.stringify([this.settingsKey, this.pathsKey, this.packagesKey, [...ds.deps].map(([p, f]) => [p, typeof f === 'string' ? f : factId(f)])]);
       if (!b || global !== cache.global) {

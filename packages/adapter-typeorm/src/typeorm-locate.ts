@@ -365,9 +365,9 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
 
   const consulted = new Set<string>();
   const configFiles = new Set<string>();
-  // with --path: data source files read for their settings only, handed over as consulted files
-  // (the assembly takes their type and naming, not their entities)
-  const settingsFiles = new Set<string>();
+  // with --path: data source files among the selected ones, handed over as consulted files (the
+  // assembly reads them; the entities they list outside the selection are neither followed nor missing)
+  const consultedConfigs = new Set<string>();
   let roots: string[] = [];
   const sourceOf = (p: string): boolean => SOURCE_FILE.test(p) && !isDeclarationFile(p);
 
@@ -376,11 +376,11 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
       if (!sourceOf(p)) continue;
       const scan = await scanOf(p);
       if (scan?.entity) roots.push(p);
-      // a data source among the selected files gives the database type and the naming (the
-      // entities are the selection's)
+      // a data source among the selected files gives the database type and the naming, and which
+      // of the selected entities TypeORM registers
       else if (scan?.config && !isTestPath(p) && ((await factsOf(tree, p))?.configs.length ?? 0) > 0) {
         configFiles.add(p);
-        settingsFiles.add(p);
+        consultedConfigs.add(p);
       }
     }
   } else {
@@ -467,7 +467,7 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
       if (val.k === 'r') used.add(val.n.split('.')[0]!);
       for (const x of Object.values(val)) if (x && typeof x === 'object') collect(x);
     };
-    // (with --path, only what the naming strategy uses: the entities are the selection's)
+    // (with --path, only what the naming strategy uses: the entities are among the selection)
     for (const cfg of facts.configs) collect(req.paths ? namingStrategyOf(cfg.options) : cfg.options);
     for (const k of facts.consts) if (used.has(k.name)) collect(k.value);
     for (const imp of facts.imports) {
@@ -493,7 +493,7 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
     }
   }
   for (const c of configFiles) {
-    if (settingsFiles.has(c)) consulted.add(c);
+    if (consultedConfigs.has(c)) consulted.add(c);
     else included.add(c);
   }
   // a package that imports were resolved into: its package.json is consulted (the assembly
