@@ -156,6 +156,15 @@ describe('naming strategy and options of the data source', () => {
     });
     expect(odd.diagnostics.map((d) => d.code)).toContain('typeorm/unknown-naming-strategy');
     expect(tableNames(odd)).toContain('coop_member');
+    // one chosen at run time is said to be so
+    const chosen = await runAdapter({
+      ...RELATED,
+      'src/data-source.ts': "import { DataSource, DefaultNamingStrategy } from 'typeorm';\nimport { SnakeNamingStrategy } from 'typeorm-naming-strategies';\nexport const ds = new DataSource({ type: 'postgres', entities: ['src/*.ts'], namingStrategy: process.env.COOP_DB === 'postgres' ? new SnakeNamingStrategy() : new DefaultNamingStrategy() });\n",
+    });
+    expect(chosen.diagnostics.map((d) => [d.code, d.message])).toEqual([
+      ['typeorm/unknown-naming-strategy', "the naming strategy (?:) depends on run-time configuration; TypeORM's default naming is used (set --typeorm-naming default|snake)"],
+    ]);
+    expect(chosen.snapshot!.tables.find((t) => t.name === 'tool_loan')!.columns.map((c) => c.name)).toContain('dueAt');
     const forced = await runAdapter(RELATED, { 'typeorm-naming': 'snake' });
     expect(forced.snapshot!.tables.find((t) => t.name === 'tool_loan')!.columns.map((c) => c.name)).toContain('due_at');
   });
@@ -191,6 +200,10 @@ describe("the application's data source, not a test helper's", () => {
     const entities = { 'src/entity/member.ts': files['src/entity/member.ts'] };
     expect(compareWithOracle(r.snapshot!, await oracle(entities, { naming: 'snake' }))).toEqual([]);
     expect(r.snapshot!.tables[0]!.columns.map((c) => c.name)).toEqual(['id', 'display_name', 'joined_on']);
+    // with the database named, nothing to say about it
+    const named = await runAdapter(files, { 'typeorm-database': 'postgres' });
+    expect(named.diagnostics).toEqual([]);
+    expect(named.snapshot).toEqual(r.snapshot);
   });
 
   it('says so when the test helpers disagree on the type', async () => {

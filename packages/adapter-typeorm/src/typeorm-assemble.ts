@@ -443,7 +443,8 @@ class Builder {
     const withType = deciding.find((c) => typed(c) && driverFamily(get(c.o, 'type') as string) !== 'mongodb') ?? deciding.find(typed) ?? deciding[0];
     let type = withType ? get(withType.o, 'type') : undefined;
     if (withType && type !== undefined && typeof type !== 'string') {
-      this.diagnostics.push({ severity: 'info', code: 'typeorm/database-unknown', file: withType.file, line: withType.cfg.line, message: `the data source type (${textOf(type)}) depends on run-time configuration; PostgreSQL's type rules are used (set --typeorm-database)` });
+      // (nothing to say when --typeorm-database names the database)
+      if (this.settings.database === 'auto') this.diagnostics.push({ severity: 'info', code: 'typeorm/database-unknown', file: withType.file, line: withType.cfg.line, message: `the data source type (${textOf(type)}) depends on run-time configuration; PostgreSQL's type rules are used (set --typeorm-database)` });
       type = undefined;
     }
     const distinctTypes = new Set(configs.map((c) => get(c.o, 'type')).filter((t): t is string => typeof t === 'string'));
@@ -549,7 +550,9 @@ class Builder {
     const unknown = (what: string): NamingRules => {
       this.diagnostics.push({
         severity: 'warning', code: 'typeorm/unknown-naming-strategy', file, line,
-        message: `the naming strategy ${what} is not one schema-strata knows; TypeORM's default naming is used (set --typeorm-naming default|snake)`,
+        message: isUnk(ns)
+          ? `the naming strategy (${what}) depends on run-time configuration; TypeORM's default naming is used (set --typeorm-naming default|snake)`
+          : `the naming strategy ${what} is not one schema-strata knows; TypeORM's default naming is used (set --typeorm-naming default|snake)`,
       });
       return namingRules('default');
     };
