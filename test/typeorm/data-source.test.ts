@@ -165,6 +165,12 @@ describe('naming strategy and options of the data source', () => {
       ['typeorm/unknown-naming-strategy', "the naming strategy (?:) depends on run-time configuration; TypeORM's default naming is used (set --typeorm-naming default|snake)"],
     ]);
     expect(chosen.snapshot!.tables.find((t) => t.name === 'tool_loan')!.columns.map((c) => c.name)).toContain('dueAt');
+    // (a member of a global in the condition is not known either: it may be unset)
+    const flag = await runAdapter({
+      ...RELATED,
+      'src/data-source.ts': "import { DataSource, DefaultNamingStrategy } from 'typeorm';\nimport { SnakeNamingStrategy } from 'typeorm-naming-strategies';\nexport const ds = new DataSource({ type: 'postgres', entities: ['src/*.ts'], namingStrategy: process.env.COOP_SNAKE ? new SnakeNamingStrategy() : new DefaultNamingStrategy() });\n",
+    });
+    expect(flag.diagnostics.map((d) => d.code)).toEqual(['typeorm/unknown-naming-strategy']);
     const forced = await runAdapter(RELATED, { 'typeorm-naming': 'snake' });
     expect(forced.snapshot!.tables.find((t) => t.name === 'tool_loan')!.columns.map((c) => c.name)).toContain('due_at');
   });

@@ -594,6 +594,9 @@ export class Project {
       case 'q': {
         const c = this.eval(v.c, env);
         if (typeof c === 'object' && c !== null && c.$ === 'unk') return { $: 'unk', t: '?:' };
+        // a member of a global or of a package's value (`process.env.X`, `settings.useSnake`) is
+        // not known: it may be falsy
+        if (isSymE(c) && (c.s.k === 'global' || c.s.k === 'external') && c.s.name.includes('.')) return { $: 'unk', t: '?:' };
         if (typeof c === 'object' && c !== null) return this.eval(v.t, env);
         return c ? this.eval(v.t, env) : this.eval(v.f, env);
       }
