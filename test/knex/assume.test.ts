@@ -29,6 +29,8 @@ const globals = globalThis as { COOP?: unknown };
 
 afterEach(() => {
   delete process.env['COOP_SITE'];
+  delete process.env['COOP_CLIENT'];
+  delete process.env['COOP_STEPS'];
   delete globals.COOP;
 });
 
@@ -108,5 +110,34 @@ describe('--knex-assume (oracle: Knex 3 on better-sqlite3, run with the same set
     expect(bad.map((d) => [d.severity, d.message])).toEqual([['error', expect.stringContaining('--knex-assume COOP.settings: expected NAME=VALUE')]]);
     const tables = tablesOf(r.steps[r.steps.length - 1]!.snapshot);
     expect(tables.map((t) => t.name).sort()).toEqual(['deposits', 'notes_north', 'tools']);
+  });
+
+  it('the knexfile is read with them too: its client and its migration directory', async () => {
+    const fromEnv = new Map([
+      ['knexfile.js', "module.exports = {\n  client: process.env.COOP_CLIENT,\n  useNullAsDefault: true,\n  migrations: { directory: process.env.COOP_STEPS },\n};\n"],
+      [
+        'db/steps/20240306_shelves.js',
+        "exports.up = async (knex) => {\n  await knex.schema.createTable('shelves', (t) => {\n    t.increments('id');\n    t.string('aisle', 8).notNullable();\n    if (knex.client.config.client === 'better-sqlite3') t.text('sqlite_note');\n    else t.jsonb('notes');\n  });\n};\nexports.down = () => {};\n",
+      ],
+    ]);
+    process.env['COOP_CLIENT'] = 'better-sqlite3';
+    process.env['COOP_STEPS'] = './db/steps';
+    // (the oracle's Knex is made for better-sqlite3, whose config.client is that name)
+    const oracle = await runKnex(fromEnv, { engine: 'sqlite', environment: 'production', each: true });
+    const r = await replayTree(fromEnv, { 'knex-assume': ['process.env.COOP_CLIENT=better-sqlite3', 'process.env.COOP_STEPS=./db/steps'] });
+    expect(r.diagnostics).toEqual([]);
+    const steps = r.steps.filter((x) => x.role === 'migration');
+    expect(steps.map((x) => name(x.path))).toEqual(oracle.migrations);
+    expect(fromReplay(tablesOf(steps[0]!.snapshot), 'sqlite')).toEqual(fromDatabase(oracle.after[0]!.tables, 'sqlite'));
+    expect(fromDatabase(oracle.final, 'sqlite')['shelves']!.columns).toEqual(['id', 'aisle', 'sqlite_note']);
+    // SQLite's types (the client's family), where PostgreSQL's are the default
+    expect(tablesOf(steps[0]!.snapshot)[0]!.columns.find((c) => c.name === 'sqlite_note')!.nativeType).toBe('text');
+    // without them: no directory, so no migrations
+    const none = await replayTree(fromEnv, {});
+    expect(none.steps.filter((x) => x.role === 'migration')).toEqual([]);
+    // and with the directory alone, the client is not known: PostgreSQL's types, the first branch, and the notes
+    const dirOnly = await replayTree(fromEnv, { 'knex-assume': ['process.env.COOP_STEPS=./db/steps'] });
+    expect(dirOnly.diagnostics.map((d) => d.code)).toEqual(['knex/knexfile', 'knex/condition-unknown']);
+    expect(dirOnly.diagnostics[1]!.message).toContain('--knex-client CLIENT');
   });
 });

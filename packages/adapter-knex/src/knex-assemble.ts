@@ -204,7 +204,7 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
   const init = initPaths(options).filter((p) => paths.has(p));
   const initSet = new Set(init);
   const knexfile = input.files.find((f) => isKnexfile(f.path) && !initSet.has(f.path));
-  const settings = knexfile ? knexfileSettings(knexfile.facts?.config, knexfile.path, options.environment) : null;
+  const settings = knexfile ? knexfileSettings(knexfile.facts?.config, knexfile.path, options.environment, options.assume) : null;
   for (const n of settings?.notes ?? []) diagnostics.push({ severity: 'info', code: 'knex/knexfile', file: knexfile!.path, message: n });
 
   let dialect: Dialect = 'postgresql';

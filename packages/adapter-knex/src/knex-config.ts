@@ -35,7 +35,7 @@ export const KNEX_OPTIONS: readonly AdapterOption[] = Object.freeze([
   {
     flag: 'knex-assume',
     description:
-      "NAME=VALUE: a value the migrations read from something the project never declares (an environment variable, an application's global settings object), as the replay's diagnostics name it (process.env.DB_CLIENT=pg, APP.config.db.type=postgres), so that conditions and switches on it take the branch that value takes; VALUE is a JSON number, true, false, null or a quoted string, else the text as it stands (always the text under process.env, as Node gives it); repeat for several",
+      "NAME=VALUE: a value the migrations or the knexfile read from something the project never declares (an environment variable, an application's global settings object), as the replay's diagnostics name it (process.env.DB_CLIENT=pg, APP.config.db.type=postgres), so that conditions and switches on it take the branch that value takes and the knexfile's client and directories that read it are known; VALUE is a JSON number, true, false, null or a quoted string, else the text as it stands (always the text under process.env, as Node gives it); repeat for several",
     type: 'string[]',
   },
   {

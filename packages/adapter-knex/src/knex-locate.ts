@@ -2,7 +2,7 @@ import { posix } from 'node:path';
 import { BlobMemo, sortedIndex, sortedUnique, type AdapterOptionValues, type Diagnostic, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
 import type { Val } from './knex-facts.js';
 import { isArr, isObj, member, parseKnexSource, runtimeImportsOf } from './knex-parse.js';
-import { knexOptions } from './knex-config.js';
+import { knexOptions, type AssumedValue, type KnexOptions } from './knex-config.js';
 
 const SOURCE_EXTENSIONS = ['.js', '.cjs', '.mjs', '.ts', '.cts', '.mts'];
 const KNEXFILE_EXTENSIONS = ['.js', '.ts', '.cjs', '.mjs', '.cts', '.mts'];
@@ -53,47 +53,70 @@ export interface KnexfileSettings {
 }
 
 const UNKNOWN = Symbol('unknown');
+const NO_ASSUMPTIONS: ReadonlyMap<string, AssumedValue> = new Map();
 type Plain = string | number | boolean | null | undefined | Plain[] | { [k: string]: Plain } | typeof UNKNOWN;
 
-/** Evaluate a knexfile value statically: `__dirname` is `/` + the knexfile's directory (an absolute path inside the repository). */
-function evalConfig(v: Val, dir: string, depth = 0): Plain {
+/**
+ * The dotted path of a read from a name the knexfile never declares (`process.env.DB_CLIENT`,
+ * `APP.db.client`), which --knex-assume may give a value; null for anything else.
+ */
+function readPath(v: Val): string | null {
+  if (v === null || typeof v !== 'object') return null;
+  if ('env' in v) return `process.env.${v.env}`;
+  if ('expr' in v) return /^(?!function$)[A-Za-z_$][\w$]*$/.test(v.expr) ? v.expr : null;
+  if ('at' in v && (typeof v.key === 'string' || typeof v.key === 'number')) {
+    const base = readPath(v.at);
+    return base === null ? null : `${base}.${v.key}`;
+  }
+  return null;
+}
+
+/**
+ * Evaluate a knexfile value statically: `__dirname` is `/` + the knexfile's directory (an
+ * absolute path inside the repository); reads from undeclared names take the values of `assume`.
+ */
+function evalConfig(v: Val, dir: string, assume: ReadonlyMap<string, AssumedValue>, depth = 0): Plain {
   if (depth > 20) return UNKNOWN;
+  if (assume.size > 0) {
+    const path = readPath(v);
+    if (path !== null && assume.has(path)) return assume.get(path)!;
+  }
   if (v === null || typeof v !== 'object') return v;
-  if ('arr' in v) return v.arr.map((x) => evalConfig(x, dir, depth + 1));
+  if ('arr' in v) return v.arr.map((x) => evalConfig(x, dir, assume, depth + 1));
   if ('obj' in v) {
     const out: { [k: string]: Plain } = {};
     for (const [k, x] of v.obj) {
       if (k === '...') {
-        const s = evalConfig(x, dir, depth + 1);
+        const s = evalConfig(x, dir, assume, depth + 1);
         if (s && typeof s === 'object' && !Array.isArray(s)) Object.assign(out, s);
-      } else out[k] = evalConfig(x, dir, depth + 1);
+      } else out[k] = evalConfig(x, dir, assume, depth + 1);
     }
     return out;
   }
   if ('dir' in v) return '/' + dir;
   if ('join' in v) {
-    const parts = v.join.map((x) => evalConfig(x, dir, depth + 1));
+    const parts = v.join.map((x) => evalConfig(x, dir, assume, depth + 1));
     if (!parts.every((p) => typeof p === 'string')) return UNKNOWN;
     // path.resolve(x) is relative to the working directory, which Knex's CLI sets to the knexfile's
     return posix.join(...(parts as string[]));
   }
   if ('cat' in v) {
-    const parts = v.cat.map((x) => evalConfig(x, dir, depth + 1));
+    const parts = v.cat.map((x) => evalConfig(x, dir, assume, depth + 1));
     if (!parts.every((p) => typeof p === 'string' || typeof p === 'number')) return UNKNOWN;
     return parts.join('');
   }
   if ('or' in v) {
-    const a = evalConfig(v.or[0], dir, depth + 1);
-    return a === UNKNOWN || !a ? evalConfig(v.or[1], dir, depth + 1) : a;
+    const a = evalConfig(v.or[0], dir, assume, depth + 1);
+    return a === UNKNOWN || !a ? evalConfig(v.or[1], dir, assume, depth + 1) : a;
   }
   if ('when' in v) {
     // `process.env.X ? a : b`: not known; the first branch Knex users write is the usual one
-    const a = evalConfig(v.then, dir, depth + 1);
-    return a === UNKNOWN ? evalConfig(v.else, dir, depth + 1) : a;
+    const a = evalConfig(v.then, dir, assume, depth + 1);
+    return a === UNKNOWN ? evalConfig(v.else, dir, assume, depth + 1) : a;
   }
   if ('at' in v) {
-    const base = evalConfig(v.at, dir, depth + 1);
-    const key = evalConfig(v.key, dir, depth + 1);
+    const base = evalConfig(v.at, dir, assume, depth + 1);
+    const key = evalConfig(v.key, dir, assume, depth + 1);
     if (base && typeof base === 'object' && !Array.isArray(base) && typeof key === 'string') return base[key];
     return UNKNOWN;
   }
@@ -115,7 +138,7 @@ export function knexfileEnvironments(config: Val): string[] | null {
  * asked for, else `production`, else `development`, else the first one (Knex's CLI reads
  * `development` by default; production is where the schema that matters lives).
  */
-export function knexfileSettings(config: Val | undefined, knexfilePath: string, environment?: string): KnexfileSettings {
+export function knexfileSettings(config: Val | undefined, knexfilePath: string, environment?: string, assume: ReadonlyMap<string, AssumedValue> = NO_ASSUMPTIONS): KnexfileSettings {
   const dir = posix.dirname(knexfilePath) === '.' ? '' : posix.dirname(knexfilePath);
   const notes: string[] = [];
   const settings: KnexfileSettings = {
@@ -137,7 +160,7 @@ export function knexfileSettings(config: Val | undefined, knexfilePath: string, 
       chosen = member(config!, name);
     }
   }
-  const plain = chosen === undefined ? undefined : evalConfig(chosen, dir);
+  const plain = chosen === undefined ? undefined : evalConfig(chosen, dir, assume);
   const obj = plain && typeof plain === 'object' && !Array.isArray(plain) ? plain : {};
   const client = obj['client'] ?? obj['dialect'];
   if (typeof client === 'string') {
@@ -308,9 +331,9 @@ interface Found {
 }
 
 /** The migrations of one knexfile at this commit. */
-async function fromKnexfile(tree: TreeView, knexfile: string, environment: string | undefined): Promise<Found> {
+async function fromKnexfile(tree: TreeView, knexfile: string, opts: KnexOptions): Promise<Found> {
   const config = await knexfileConfig(tree, knexfile);
-  const s = knexfileSettings(config ?? undefined, knexfile, environment);
+  const s = knexfileSettings(config ?? undefined, knexfile, opts.environment, opts.assume);
   const migrations: string[] = [];
   let fromSources = false;
   for (const dir of s.directories) {
@@ -417,10 +440,10 @@ export async function locateKnex(tree: TreeView, req: LocateRequest): Promise<Lo
     }
     const pick = (list: string[]): string =>
       [...list].sort((a, b) => KNEXFILE_EXTENSIONS.indexOf(posix.extname(a)) - KNEXFILE_EXTENSIONS.indexOf(posix.extname(b)))[0]!;
-    if (byDir.has('.')) found = await fromKnexfile(tree, pick(byDir.get('.')!), opts.environment);
+    if (byDir.has('.')) found = await fromKnexfile(tree, pick(byDir.get('.')!), opts);
     else if (byDir.size > 0) {
       const candidates: Found[] = [];
-      for (const d of [...byDir.keys()].sort()) candidates.push(await fromKnexfile(tree, pick(byDir.get(d)!), opts.environment));
+      for (const d of [...byDir.keys()].sort()) candidates.push(await fromKnexfile(tree, pick(byDir.get(d)!), opts));
       const distinct = new Map<string, Found>();
       for (const c of candidates) {
         const key = c.migrations.join('\n');
