@@ -328,3 +328,57 @@ describe('options of one database per branch, built on shared ones that hold the
     expect(d[0]!.message).toContain("is not a column type of postgres (no data source's type was read: PostgreSQL's rules are the default; --typeorm-database names the database)");
   });
 });
+
+describe('--typeorm-assume: settings the entities and the data source read from process.env', () => {
+  // the oracle loads the same entity modules with the environment set (TypeScript's own output,
+  // TypeORM's own metadata); the data source file is not loaded (it would connect)
+  const entities = {
+    'src/entity/tool.ts':
+      "import { Column, Entity, PrimaryGeneratedColumn } from 'typeorm';\nimport * as process from 'process';\n\nconst inTests = process.env.COOP_ENV === 'test';\n\n@Entity('tools')\nexport class Tool {\n  @PrimaryGeneratedColumn()\n  id: number;\n\n  @Column({ type: process.env.COOP_ENV === 'test' ? 'varchar' : 'text' })\n  label: string;\n\n  @Column({ length: inTests ? 20 : 80 })\n  code: string;\n\n  @Column({ nullable: process.env.COOP_ENV !== 'production' })\n  shelf: string;\n}\n",
+  };
+  const files = {
+    ...entities,
+    'package.json': '{ "name": "coop" }',
+    'src/data-source.ts': "import { DataSource } from 'typeorm';\nimport { Tool } from './entity/tool';\n\nexport const ds = new DataSource({ type: (process.env.COOP_DB_TYPE || 'postgres') as 'postgres', entities: [Tool] });\n",
+  };
+
+  for (const coopEnv of ['production', 'test']) {
+    it(`reads the options as TypeORM does with that environment (COOP_ENV=${coopEnv})`, async () => {
+      process.env['COOP_ENV'] = coopEnv;
+      try {
+        const theirs = await oracle(entities);
+        const r = await runAdapter(files, { 'typeorm-assume': [`process.env.COOP_ENV=${coopEnv}`, 'process.env.COOP_DB_TYPE=postgres'] });
+        expect(r.diagnostics).toEqual([]);
+        expect(compareWithOracle(r.snapshot!, theirs)).toEqual([]);
+        const cols = r.snapshot!.tables[0]!.columns;
+        expect(cols.map((c) => [c.name, c.nativeType, c.nullable])).toEqual([
+          ['id', 'Number', false],
+          ['label', coopEnv === 'test' ? 'varchar' : 'text', false],
+          ['code', coopEnv === 'test' ? 'String(20)' : 'String(80)', false],
+          ['shelf', 'String', coopEnv !== 'production'],
+        ]);
+      } finally {
+        delete process.env['COOP_ENV'];
+      }
+    });
+  }
+
+  it('without it: each such option is not known (TypeORM default, a diagnostic), and the data source type neither', async () => {
+    const r = await runAdapter(files);
+    expect(r.diagnostics.map((d) => [d.code, d.line])).toEqual([
+      ['typeorm/database-unknown', 4],
+      ['typeorm/not-literal', 12],
+      ['typeorm/not-literal', 15],
+      ['typeorm/not-literal', 18],
+    ]);
+  });
+
+  it("the data source's type read from process.env decides the database", async () => {
+    const r = await runAdapter(files, { 'typeorm-assume': ['process.env.COOP_ENV=production', 'process.env.COOP_DB_TYPE=mysql'] });
+    expect(r.diagnostics).toEqual([]);
+    // MySQL's type rules: a varchar(80) stays, `text` is MySQL's text (TypeORM's MysqlDriver normalisation, types.test.ts)
+    expect(r.snapshot!.tables[0]!.columns.find((c) => c.name === 'label')!.nativeType).toBe('text');
+    const bad = await runAdapter(files, { 'typeorm-assume': ['COOP_DB_TYPE'] });
+    expect(bad.diagnostics.map((d) => [d.severity, d.code])).toContainEqual(['error', 'typeorm/bad-assume-option']);
+  });
+});

@@ -1,4 +1,4 @@
-import type { AdapterOption, AdapterOptionValues, Diagnostic } from '@schema-strata/core/extract';
+import { readAssumptions, type AdapterOption, type AdapterOptionValues, type AssumedValue, type Diagnostic } from '@schema-strata/core/extract';
 import { dialectOf, DIALECTS, KNEX_CLIENT_NAMES, type Dialect } from './knex-types.js';
 
 /** Values of --knex-client besides auto: the type families, then the other client names Knex accepts. */
@@ -62,40 +62,7 @@ export interface KnexOptions {
   diagnostics: Diagnostic[];
 }
 
-export type AssumedValue = string | number | boolean | null;
-
-const ASSUME = /^\s*([A-Za-z_$][\w$]*(?:\.[\w$]+)*)\s*=(.*)$/s;
-
-/** The --knex-assume entries: path -> value; a malformed entry is a diagnostic. */
-function readAssumptions(raw: unknown, diagnostics: Diagnostic[]): Map<string, AssumedValue> {
-  const out = new Map<string, AssumedValue>();
-  const list = Array.isArray(raw) ? raw : typeof raw === 'string' && raw ? [raw] : [];
-  for (const entry of list) {
-    const m = typeof entry === 'string' ? ASSUME.exec(entry) : null;
-    if (!m) {
-      diagnostics.push({
-        severity: 'error', code: 'knex/bad-assume-option',
-        message: `--knex-assume ${String(entry)}: expected NAME=VALUE, NAME a dotted path such as process.env.DB_CLIENT or APP.config.db.type`,
-      });
-      continue;
-    }
-    const path = m[1]!;
-    const text = m[2]!.trim();
-    const json = path.startsWith('process.env.') ? undefined : jsonScalar(text);
-    out.set(path, json === undefined ? text : json);
-  }
-  return out;
-}
-
-/** A JSON scalar's value (a number, true, false, null, a quoted string), else undefined. */
-function jsonScalar(text: string): AssumedValue | undefined {
-  try {
-    const v: unknown = JSON.parse(text);
-    return v === null || typeof v === 'string' || typeof v === 'number' || typeof v === 'boolean' ? v : undefined;
-  } catch {
-    return undefined;
-  }
-}
+export type { AssumedValue };
 
 /** The adapter's options from the values core passes (CLI flags or the configuration file). */
 export function knexOptions(values: AdapterOptionValues): KnexOptions {
@@ -104,8 +71,7 @@ export function knexOptions(values: AdapterOptionValues): KnexOptions {
   const env = values['knex-environment'];
   const client = values['knex-client'];
   const schema = values['knex-schema'];
-  const diagnostics: Diagnostic[] = [];
-  const assume = readAssumptions(values['knex-assume'], diagnostics);
+  const { values: assume, diagnostics } = readAssumptions(values['knex-assume'], 'knex-assume', 'knex/bad-assume-option');
   return {
     assume,
     diagnostics,

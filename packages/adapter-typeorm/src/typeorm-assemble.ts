@@ -321,7 +321,7 @@ class Builder {
     /** Data source files the locate step consulted (under --path): the entities they list that are not selected are not missing. */
     private readonly consultedDataSources: ReadonlySet<string> = new Set(),
   ) {
-    this.project = new Project(files, delta, packages);
+    this.project = new Project(files, delta, packages, settings.assume);
     this.reader = new DecoratorReader(this.project, settings);
     this.classByKey = cache.classByKey;
   }
@@ -2030,7 +2030,7 @@ export class TypeormAssembler {
 
   constructor(options: AdapterOptionValues) {
     this.settings = readSettings(options);
-    this.settingsKey = JSON.stringify([this.settings.naming, this.settings.database, [...this.settings.decorators]]);
+    this.settingsKey = JSON.stringify([this.settings.naming, this.settings.database, [...this.settings.decorators], [...this.settings.assume]]);
   }
 
   assemble(input: AssembleInput<TypeormFileFacts>): AssembleResult {

@@ -1,4 +1,4 @@
-import type { AdapterOption, AdapterOptionValues, Diagnostic } from '@schema-strata/core/extract';
+import { readAssumptions, type AdapterOption, type AdapterOptionValues, type AssumedValue, type Diagnostic } from '@schema-strata/core/extract';
 
 /** TypeORM's decorators the adapter interprets (and that `--typeorm-decorator` may name). */
 export const TYPEORM_DECORATORS = [
@@ -26,6 +26,12 @@ export const TYPEORM_OPTIONS: readonly AdapterOption[] = Object.freeze([
     type: 'string[]',
   },
   {
+    flag: 'typeorm-assume',
+    description:
+      "NAME=VALUE: a value the entities or the data source read from something the project never declares (an environment variable: process.env.DB_TYPE=mysql, process.env.NODE_ENV=production), so that options computed from it (a column type chosen by a condition, the data source's type) are known; VALUE is a JSON number, true, false, null or a quoted string, else the text as it stands (always the text under process.env); repeat for several",
+    type: 'string[]',
+  },
+  {
     flag: 'typeorm-database',
     description: 'database whose type rules apply: auto (the data source\'s `type`, else postgres), postgres, mysql, sqlite or mssql',
     type: 'string',
@@ -39,6 +45,8 @@ export interface TypeormSettings {
   database: 'auto' | 'postgres' | 'mysql' | 'sqlite' | 'mssql';
   /** Project decorator name -> TypeORM decorator name (or `IGNORE`). */
   decorators: Map<string, string>;
+  /** Values of reads from undeclared names (`--typeorm-assume`), by dotted path. */
+  assume: ReadonlyMap<string, AssumedValue>;
   diagnostics: Diagnostic[];
 }
 
@@ -62,10 +70,13 @@ export function readSettings(options: AdapterOptionValues): TypeormSettings {
     }
     decorators.set(m[1]!, target);
   }
+  const assumed = readAssumptions(options['typeorm-assume'], 'typeorm-assume', 'typeorm/bad-assume-option');
+  diagnostics.push(...assumed.diagnostics);
   return {
     naming: naming === 'default' || naming === 'snake' ? naming : 'auto',
     database: database === 'postgres' || database === 'mysql' || database === 'sqlite' || database === 'mssql' ? database : 'auto',
     decorators,
+    assume: assumed.values,
     diagnostics,
   };
 }

@@ -1,5 +1,5 @@
 import { posix } from 'node:path';
-import type { Diagnostic } from '@schema-strata/core/extract';
+import type { AssumedValue, Diagnostic } from '@schema-strata/core/extract';
 import { TYPEORM_DECORATORS } from './typeorm-config.js';
 import { ModuleResolver, nearestTsconfig, tsconfigView, type TsconfigView, type WorkspacePackage } from './typeorm-modules.js';
 import type {
@@ -52,6 +52,16 @@ export interface Env {
   /** Nesting of custom decorator expansions. */
   depth: number;
 }
+
+/** The modules whose exports are Node's `process` (`import * as process from 'process'`, `import { env } from 'node:process'`). */
+const NODE_PROCESS = new Set(['process', 'node:process']);
+/** The dotted path of an export of Node's process module, as read from the global (`*` and `default` are `process` itself). */
+function processPath(name: string): string {
+  const rest = name.replace(/^(\*|default)(\.|$)/, '');
+  return rest ? `process.${rest}` : 'process';
+}
+const EQUALITY = new Set(['===', '!==', '==', '!=']);
+const isScalar = (e: E): e is string | number | boolean | null | undefined => e === null || e === undefined || typeof e === 'string' || typeof e === 'number' || typeof e === 'boolean';
 
 const GLOBALS = new Set([
   'Object', 'String', 'Number', 'Boolean', 'Date', 'Array', 'Buffer', 'Function', 'Symbol', 'BigInt', 'Promise', 'Map', 'Set',
@@ -174,7 +184,11 @@ export class Project {
   private expKeys: string[];
 
   /** `packages`: the workspace packages of the version (its package.json inputs), by name. */
-  constructor(public files: ReadonlyMap<string, TypeormFileFacts>, private delta?: VersionDelta, packages?: ReadonlyMap<string, readonly WorkspacePackage[]>) {
+  constructor(
+    public files: ReadonlyMap<string, TypeormFileFacts>, private delta?: VersionDelta, packages?: ReadonlyMap<string, readonly WorkspacePackage[]>,
+    /** Values of reads from undeclared names (`--typeorm-assume`), by dotted path. */
+    private readonly assume: ReadonlyMap<string, AssumedValue> = new Map(),
+  ) {
     this.expKeys = (delta?.changed ?? []).map((p) => `exp:${p}`);
     // the set of paths is the same for the project's life (module resolution and tsconfig views depend on it)
     const has = (p: string): boolean => this.files.has(p);
@@ -497,6 +511,11 @@ export class Project {
         }
         if (s.k === 'typeormNs') return { $: 'sym', s: { k: 'typeorm', name } };
         if (s.k === 'module') return this.symToE(this.exportOf(s.file, name));
+        if (s.k === 'global' || (s.k === 'external' && NODE_PROCESS.has(s.module))) {
+          // a read of process.env and the like (also through `import * as process from 'process'`)
+          const path = `${s.k === 'global' ? s.name : processPath(s.name)}.${name}`;
+          if (this.assume.has(path)) return this.assume.get(path);
+        }
         if (s.k === 'global') return { $: 'sym', s: { k: 'global', name: `${s.name}.${name}` } };
         if (s.k === 'external') return { $: 'sym', s: { k: 'external', module: s.module, name: `${s.name}.${name}` } };
         if (s.k === 'missing') return o;
@@ -588,6 +607,12 @@ export class Project {
         if (v.o === '||') return isUnk(l) ? l : l ? l : this.eval(v.r, env);
         if (v.o === '&&') return isUnk(l) ? l : l ? this.eval(v.r, env) : l;
         const r = this.eval(v.r, env);
+        if (EQUALITY.has(v.o)) {
+          // a comparison of values known here (`process.env.NODE_ENV === 'test'` with --typeorm-assume)
+          if (!isScalar(l) || !isScalar(r)) return { $: 'unk', t: v.t ?? v.o };
+          const same = v.o === '===' || v.o === '!==' ? l === r : l == r;
+          return v.o === '===' || v.o === '==' ? same : !same;
+        }
         if ((typeof l === 'string' || typeof l === 'number') && (typeof r === 'string' || typeof r === 'number')) return (l as string) + (r as string);
         return { $: 'unk', t: '+' };
       }

@@ -45,7 +45,7 @@ export type Value =
   | { k: 'c'; c: Value; a: Value[] }
   | { k: 'n'; c: Value; a: Value[] }
   /** A binary or logical expression (`??`, `||`, `&&`, `+`). */
-  | { k: 'b'; o: string; l: Value; r: Value }
+  | { k: 'b'; o: string; l: Value; r: Value; /** (comparisons) the source text, for messages when not known */ t?: string }
   /** A conditional expression. */
   | { k: 'q'; c: Value; t: Value; f: Value }
   /** A template literal: text and values. */
@@ -327,6 +327,9 @@ class Reader {
       const o =
         op === ts.SyntaxKind.QuestionQuestionToken ? '??' : op === ts.SyntaxKind.BarBarToken ? '||' : op === ts.SyntaxKind.AmpersandAmpersandToken ? '&&' : op === ts.SyntaxKind.PlusToken ? '+' : null;
       if (o) return { k: 'b', o, l: this.value(e.left, scope), r: this.value(e.right, scope) };
+      const cmp =
+        op === ts.SyntaxKind.EqualsEqualsEqualsToken ? '===' : op === ts.SyntaxKind.ExclamationEqualsEqualsToken ? '!==' : op === ts.SyntaxKind.EqualsEqualsToken ? '==' : op === ts.SyntaxKind.ExclamationEqualsToken ? '!=' : null;
+      if (cmp) return { k: 'b', o: cmp, l: this.value(e.left, scope), r: this.value(e.right, scope), t: this.text(e) };
     }
     if (ts.isConditionalExpression(e)) return { k: 'q', c: this.value(e.condition, scope), t: this.value(e.whenTrue, scope), f: this.value(e.whenFalse, scope) };
     if (ts.isTemplateExpression(e)) {
