@@ -5,7 +5,7 @@
 // chains over statements, helpers, and builders that are never awaited (Knex never runs them).
 import { describe, expect, it } from 'vitest';
 import type { KnexFacts } from '@schema-strata/adapter-knex';
-import { replaySteps, tablesOf } from './fixture.js';
+import { replaySteps, replayTree, tablesOf } from './fixture.js';
 import { runKnex } from './oracle.js';
 import { fromDatabase, fromReplay } from './compare.js';
 
@@ -122,6 +122,16 @@ const CASES: Case[] = [
     files: { 'migrations/001.js': LOOP_OF_DATA },
     codes: [],
   },
+  {
+    // a pattern of a real application: column names kept in enums, imported through a barrel
+    name: "names and values from TypeScript enums of the project (string, numeric with TypeScript's reverse mapping, const)",
+    files: {
+      'src/fields/tool.ts': "export enum FieldNameTool {\n  id = 'id',\n  label = 'tool_label',\n  kind = 'kind',\n}\nexport const TableTool = 'tools';\nexport enum ToolKind {\n  Drill = 'drill',\n  Saw = 'saw',\n}\nexport enum Shelf {\n  Top,\n  Middle = 5,\n  Bottom,\n}\nexport const enum Size {\n  Small = 's',\n}\n",
+      'src/fields/index.ts': "export { FieldNameTool, TableTool, ToolKind, Shelf, Size } from './tool';\n",
+      'migrations/001.ts': "import { FieldNameTool, Shelf, Size, TableTool, ToolKind } from '../src/fields';\n\nenum Local {\n  Note = 'note',\n}\n\nexport async function up(knex: any): Promise<void> {\n  await knex.schema.createTable(TableTool, (t: any) => {\n    t.increments(FieldNameTool.id);\n    t.string(FieldNameTool.label).notNullable();\n    t.enu(FieldNameTool.kind, Object.values(ToolKind));\n    t.integer('shelf_' + Shelf.Bottom);\n    for (const s of Object.keys(Shelf)) t.boolean(`on_${s}`);\n    t.string(Local.Note);\n    t.string(`size_${Size.Small}`);\n  });\n}\nexport async function down(): Promise<void> {}\n",
+    },
+    codes: [],
+  },
 ];
 
 describe('ways of writing a Knex migration (oracle: Knex 3 on better-sqlite3)', () => {
@@ -135,6 +145,7 @@ describe('ways of writing a Knex migration (oracle: Knex 3 on better-sqlite3)', 
       const last = migrations[migrations.length - 1]!.snapshot;
       expect(fromReplay(tablesOf(last), 'sqlite')).toEqual(fromDatabase(oracle.final, 'sqlite'));
       expect(oracle.final.length).toBeGreaterThan(0);
+      if (c.codes?.length === 0) expect((await replayTree(tree, { 'knex-client': 'sqlite' })).diagnostics).toEqual([]);
     });
   }
 

@@ -933,6 +933,33 @@ class FileCompiler {
     return v;
   }
 
+  /**
+   * An enum as an object of its members' values, as TypeScript compiles it: a string or number
+   * initializer, else the previous member's number plus one (from 0), a numeric member also
+   * mapped back from its value to its name; a member given another expression is read as a value,
+   * and the members after it without an initializer are not known.
+   */
+  private enumVal(st: import('ts-morph').ts.EnumDeclaration, scope: Scope): Val {
+    const t = this.t;
+    const obj: Array<[string, Val]> = [];
+    let next: number | null = 0;
+    for (const m of st.members) {
+      const name = t.isIdentifier(m.name) || t.isStringLiteral(m.name) ? m.name.text : null;
+      if (name === null) {
+        next = null;
+        continue;
+      }
+      let v: Val;
+      if (m.initializer) v = this.val(m.initializer, scope);
+      else v = next === null ? { expr: `${st.name.text}.${name}` } : next;
+      next = typeof v === 'number' ? v + 1 : null;
+      obj.push([name, v]);
+      // a numeric member also maps its value back to its name (`E[E["Top"] = 0] = "Top"`)
+      if (typeof v === 'number') obj.push([String(v), name]);
+    }
+    return { obj };
+  }
+
   private propName(n: import('ts-morph').ts.PropertyName, scope: Scope): string | null {
     const t = this.t;
     if (t.isIdentifier(n) || t.isStringLiteral(n) || t.isNumericLiteral(n) || t.isPrivateIdentifier(n)) return n.text;
@@ -1109,11 +1136,20 @@ class FileCompiler {
       if (t.isFunctionDeclaration(st) && st.name && st.body) {
         scope.set(st.name.text, { kind: 'fn', key: this.registerFn(st.name.text, st, scope, false) });
       }
+      // an enum's members are constants (`enum FieldNameTool { label = 'label' }`), read anywhere in the file
+      if (t.isEnumDeclaration(st) && !(t.getModifiers(st) ?? []).some((m) => m.kind === t.SyntaxKind.DeclareKeyword)) {
+        scope.set(st.name.text, { kind: 'val', val: this.enumVal(st, scope) });
+      }
     }
     for (const st of sf.statements) {
       const isExported = (t.canHaveModifiers(st) ? t.getModifiers(st) ?? [] : []).some((m) => m.kind === t.SyntaxKind.ExportKeyword);
       const isDefault = (t.canHaveModifiers(st) ? t.getModifiers(st) ?? [] : []).some((m) => m.kind === t.SyntaxKind.DefaultKeyword);
       if (t.isImportDeclaration(st)) continue;
+      if (t.isEnumDeclaration(st)) {
+        const b = scope.get(st.name.text);
+        if (isExported && b?.kind === 'val') exports[st.name.text] = { val: b.val };
+        continue;
+      }
       if (t.isFunctionDeclaration(st)) {
         if (st.name && st.body && isExported) {
           const b = scope.get(st.name.text);
