@@ -378,6 +378,16 @@ describe('--typeorm-assume: settings the entities and the data source read from 
     expect(r.diagnostics).toEqual([]);
     // MySQL's type rules: a varchar(80) stays, `text` is MySQL's text (TypeORM's MysqlDriver normalisation, types.test.ts)
     expect(r.snapshot!.tables[0]!.columns.find((c) => c.name === 'label')!.nativeType).toBe('text');
+    // a data source written with quoted keys, as JSON is, and a type cast (a real project's form)
+    const quoted = { ...files, 'src/data-source.ts': "import { DataSource } from 'typeorm';\nimport { Tool } from './entity/tool';\n\nexport function settings() {\n  return {\n    \"type\": (process.env.COOP_DB_TYPE as any) || \"sqlite\",\n    \"entities\": [Tool],\n  };\n}\nexport const ds = new DataSource(settings());\n" };
+    const q = await runAdapter(quoted, { 'typeorm-assume': ['process.env.COOP_ENV=production', 'process.env.COOP_DB_TYPE=mysql'] });
+    expect(q.located.files).toContain('src/data-source.ts');
+    expect(q.diagnostics).toEqual([]);
+    expect(q.snapshot).toEqual(r.snapshot);
+    const unknownType = await runAdapter(quoted, { 'typeorm-assume': ['process.env.COOP_ENV=production'] });
+    expect(unknownType.diagnostics.map((d) => d.message)).toEqual([
+      "the data source type (process.env.COOP_DB_TYPE) depends on run-time configuration; PostgreSQL's type rules are used (set --typeorm-database, or --typeorm-assume process.env.COOP_DB_TYPE=VALUE)",
+    ]);
     const bad = await runAdapter(files, { 'typeorm-assume': ['COOP_DB_TYPE'] });
     expect(bad.diagnostics.map((d) => [d.severity, d.code])).toContainEqual(['error', 'typeorm/bad-assume-option']);
   });

@@ -444,7 +444,7 @@ class Builder {
     let type = withType ? get(withType.o, 'type') : undefined;
     if (withType && type !== undefined && typeof type !== 'string') {
       // (nothing to say when --typeorm-database names the database)
-      if (this.settings.database === 'auto') this.diagnostics.push({ severity: 'info', code: 'typeorm/database-unknown', file: withType.file, line: withType.cfg.line, message: `the data source type (${textOf(type)}) depends on run-time configuration; PostgreSQL's type rules are used (set --typeorm-database)` });
+      if (this.settings.database === 'auto') this.diagnostics.push({ severity: 'info', code: 'typeorm/database-unknown', file: withType.file, line: withType.cfg.line, message: `the data source type (${textOf(type)}) depends on run-time configuration; PostgreSQL's type rules are used (set --typeorm-database${isSymE(type) && type.s.k === 'global' && type.s.name.startsWith('process.env.') ? `, or --typeorm-assume ${type.s.name}=VALUE` : ''})` });
       type = undefined;
     }
     const distinctTypes = new Set(configs.map((c) => get(c.o, 'type')).filter((t): t is string => typeof t === 'string'));

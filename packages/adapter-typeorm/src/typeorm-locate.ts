@@ -63,7 +63,8 @@ function scanText(text: string, entityDecorators: readonly string[]): Scan {
   const typeorm = fromTypeorm && importsDecorators(text);
   let entity = fromTypeorm && (/@\s*(?:[\w$]+\.)*(?:Entity|ChildEntity|ViewEntity)\s*\(/.test(text) || /\bEntitySchema\b/.test(text));
   if (!entity) for (const d of entityDecorators) if (text.includes(`@${d}`)) entity = true;
-  const config = /\bentities\s*:/.test(text) || /\bautoLoadEntities\b/.test(text);
+  // (a quoted key too: `"entities": [...]`)
+  const config = /\bentities["'`]?\s*:/.test(text) || /\bautoLoadEntities\b/.test(text);
   const reexports = new Set<string>();
   for (const m of text.matchAll(REEXPORT_RE)) reexports.add(m[1]!);
   return { entity, typeorm, config, imports: [...imports], reexports: [...reexports] };
