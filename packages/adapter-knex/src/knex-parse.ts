@@ -1,5 +1,5 @@
 import { createRequire } from 'node:module';
-import type { Diagnostic, FileFacts, SourceFile } from '@schema-strata/core/extract';
+import { detach, type Diagnostic, type FileFacts, type SourceFile } from '@schema-strata/core/extract';
 import type { Arg, Call, Chain, Cond, ExportEntry, FnIR, FnRef, KnexFacts, Param, Root, Stmt, Val } from './knex-facts.js';
 
 type TsModule = typeof import('ts-morph').ts;
@@ -1329,7 +1329,8 @@ export function parseKnexSource(text: string): FileFacts<KnexFacts> {
     };
   }
   try {
-    const facts = new FileCompiler(sf).compileFile();
+    // (facts are kept for the run: a copy, not slices of the text, see core's `detach`)
+    const facts = detach(new FileCompiler(sf).compileFile());
     return { ok: true, facts };
   } catch (e) {
     return { ok: false, diagnostics: [{ severity: 'error', code: 'knex/parse-failed', message: `could not read the file: ${(e as Error).message}` }] };
@@ -1392,7 +1393,8 @@ export function runtimeImports(sf: SourceFileNode): string[] {
 /** The relative modules a source text loads when it runs (see `runtimeImports`). */
 export function runtimeImportsOf(text: string): string[] {
   const t = ts();
-  return runtimeImports(t.createSourceFile('file.ts', text, t.ScriptTarget.Latest, false, t.ScriptKind.TS));
+  // (memoised by blob: copies, not slices that keep the text alive)
+  return detach(runtimeImports(t.createSourceFile('file.ts', text, t.ScriptTarget.Latest, false, t.ScriptKind.TS)));
 }
 
 /** `parseFile` of the adapter: the facts of one file, by its text. */

@@ -1,5 +1,5 @@
 import { posix } from 'node:path';
-import { BlobMemo, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
+import { BlobMemo, detach, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
 import { readSettings, TYPEORM_DECORATORS } from './typeorm-config.js';
 import {
   extendsTarget, globMatcher, isDeclarationFile, isTestPath, ModuleResolver, nearestTsconfig, packagesByName, parsePackageJson, ResolutionMemo, sourceGlobs, SOURCE_FILE, tsconfigView,
@@ -67,7 +67,8 @@ function scanText(text: string, entityDecorators: readonly string[]): Scan {
   const config = /\bentities["'`]?\s*:/.test(text) || /\bautoLoadEntities\b/.test(text);
   const reexports = new Set<string>();
   for (const m of text.matchAll(REEXPORT_RE)) reexports.add(m[1]!);
-  return { entity, typeorm, config, imports: [...imports], reexports: [...reexports] };
+  // (copies: a match is a slice that would keep the whole text alive as long as the scan is memoised)
+  return { entity, typeorm, config, imports: detach([...imports]), reexports: detach([...reexports]) };
 }
 
 const scanMemo = new Map<string, Map<string, Scan>>();

@@ -1,5 +1,5 @@
 import { createRequire } from 'node:module';
-import type { Diagnostic, FileFacts, SourceFile } from '@schema-strata/core/extract';
+import { detach, type Diagnostic, type FileFacts, type SourceFile } from '@schema-strata/core/extract';
 import type { ts as TsNamespace } from 'ts-morph';
 import { parsePackageJson, type PackageFact } from './typeorm-modules.js';
 import { DATA_SOURCE_TYPES } from './typeorm-types.js';
@@ -884,6 +884,8 @@ export function parseTypeormFile(file: SourceFile): FileFacts<TypeormFileFacts> 
     }
     const got = parseSource(file);
     if (got.ok && /^ormconfig\./.test(name)) for (const c of got.facts.configs) c.source = 'ormconfig';
+    // (facts are kept for the run: a copy, not slices of the text, see core's `detach`)
+    if (got.ok) got.facts = detach(got.facts);
     return got;
   } catch (e) {
     return { ok: false, diagnostics: [{ severity: 'error', code: 'typeorm/parse-failure', file: file.path, message: `could not read ${file.path}: ${(e as Error).message}` }] };
