@@ -139,5 +139,15 @@ describe('--knex-assume (oracle: Knex 3 on better-sqlite3, run with the same set
     const dirOnly = await replayTree(fromEnv, { 'knex-assume': ['process.env.COOP_STEPS=./db/steps'] });
     expect(dirOnly.diagnostics.map((d) => d.code)).toEqual(['knex/knexfile', 'knex/condition-unknown']);
     expect(dirOnly.diagnostics[1]!.message).toContain('--knex-client CLIENT');
+    // a condition in the knexfile is decided by them as well (else its first branch is taken)
+    const chosen = new Map(fromEnv);
+    chosen.set('knexfile.js', "module.exports = {\n  client: process.env.COOP_LITE === 'yes' ? 'better-sqlite3' : 'pg',\n  useNullAsDefault: true,\n  migrations: { directory: './db/steps' },\n};\n");
+    const lite = await replayTree(chosen, { 'knex-assume': ['process.env.COOP_LITE=yes'] });
+    expect(lite.diagnostics).toEqual([]);
+    expect(tablesOf(lite.steps[0]!.snapshot)[0]!.columns.map((c) => c.name)).toEqual(['id', 'aisle', 'sqlite_note']);
+    const pg = await replayTree(chosen, { 'knex-assume': ['process.env.COOP_LITE=no'] });
+    expect(tablesOf(pg.steps[0]!.snapshot)[0]!.columns.map((c) => c.name)).toEqual(['id', 'aisle', 'notes']);
+    const first = await replayTree(chosen, {});
+    expect(tablesOf(first.steps[0]!.snapshot)[0]!.columns.map((c) => c.name)).toEqual(['id', 'aisle', 'sqlite_note']);
   });
 });

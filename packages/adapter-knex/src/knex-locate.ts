@@ -1,6 +1,6 @@
 import { posix } from 'node:path';
 import { BlobMemo, sortedIndex, sortedUnique, type AdapterOptionValues, type Diagnostic, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
-import type { Val } from './knex-facts.js';
+import type { Cond, Val } from './knex-facts.js';
 import { isArr, isObj, member, parseKnexSource, runtimeImportsOf } from './knex-parse.js';
 import { knexOptions, type AssumedValue, type KnexOptions } from './knex-config.js';
 
@@ -110,7 +110,10 @@ function evalConfig(v: Val, dir: string, assume: ReadonlyMap<string, AssumedValu
     return a === UNKNOWN || !a ? evalConfig(v.or[1], dir, assume, depth + 1) : a;
   }
   if ('when' in v) {
-    // `process.env.X ? a : b`: not known; the first branch Knex users write is the usual one
+    // `process.env.X ? a : b`: decided when --knex-assume gives what it reads, else not known,
+    // and the first branch Knex users write is the usual one
+    const c = evalCond(v.when, dir, assume, depth + 1);
+    if (c !== undefined) return evalConfig(c ? v.then : v.else, dir, assume, depth + 1);
     const a = evalConfig(v.then, dir, assume, depth + 1);
     return a === UNKNOWN ? evalConfig(v.else, dir, assume, depth + 1) : a;
   }
@@ -122,6 +125,34 @@ function evalConfig(v: Val, dir: string, assume: ReadonlyMap<string, AssumedValu
   }
   if ('undef' in v) return undefined;
   return UNKNOWN;
+}
+
+/** A knexfile's condition, when its values are known (undefined when not). */
+function evalCond(c: Cond, dir: string, assume: ReadonlyMap<string, AssumedValue>, depth: number): boolean | undefined {
+  if (depth > 20) return undefined;
+  if ('lit' in c) return c.lit;
+  if ('not' in c) {
+    const x = evalCond(c.not, dir, assume, depth + 1);
+    return x === undefined ? undefined : !x;
+  }
+  if ('and' in c || 'or' in c) {
+    const [l, r] = 'and' in c ? c.and : c.or;
+    const a = evalCond(l, dir, assume, depth + 1);
+    const b = evalCond(r, dir, assume, depth + 1);
+    if ('and' in c) return a === false || b === false ? false : a === true && b === true ? true : undefined;
+    return a === true || b === true ? true : a === false && b === false ? false : undefined;
+  }
+  const scalar = (x: Plain): boolean => x === null || x === undefined || typeof x === 'string' || typeof x === 'number' || typeof x === 'boolean';
+  if ('eq' in c) {
+    const a = evalConfig(c.eq[0], dir, assume, depth + 1);
+    const b = evalConfig(c.eq[1], dir, assume, depth + 1);
+    return scalar(a) && scalar(b) ? (a === b) !== !!c.neg : undefined;
+  }
+  if ('truthy' in c) {
+    const x = evalConfig(c.truthy, dir, assume, depth + 1);
+    return x === UNKNOWN ? undefined : !!x;
+  }
+  return undefined;
 }
 
 const CONFIG_KEYS = ['client', 'dialect', 'connection', 'migrations', 'useNullAsDefault', 'pool', 'searchPath'];
