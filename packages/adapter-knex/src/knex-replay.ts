@@ -1546,7 +1546,6 @@ function callbackMayChange(c: { args?: Arg[] }): boolean {
   return !!c.args?.some((a) => a !== null && typeof a === 'object' && 'cb' in a && mayChangeSchema(a.cb.body));
 }
 
-/** A value known statically and compared by identity: a literal, null or undefined. */
 const NO_ASSUMPTIONS: ReadonlyMap<string, AssumedValue> = new Map();
 /** An identifier (the parse's text of a name the file does not declare; `function` is its text of a method). */
 const GLOBAL_NAME = /^(?!function$)[A-Za-z_$][\w$]*$/;
@@ -1566,6 +1565,7 @@ function hint(reads: readonly string[]): string {
   return says.length > 0 ? ` (to decide it, say what it reads: ${says.join(', ')})` : '';
 }
 
+/** A value known statically and compared by identity: a literal, null or undefined. */
 function known(x: Runtime): boolean {
   return x === null || x === undefined || typeof x === 'string' || typeof x === 'number' || typeof x === 'boolean';
 }
