@@ -80,7 +80,7 @@ describe('--knex-assume (oracle: Knex 3 on better-sqlite3, run with the same set
       ['knexfile.js', tree.get('knexfile.js')!],
       [
         'migrations/20240304_kinds.js',
-        "exports.up = async (knex) => {\n  await knex.schema.createTable('kinds', (t) => {\n    t.increments('id');\n    if (COOP.limit === 3) t.integer('three');\n    if (COOP.label === '3') t.integer('label_three');\n    if (COOP.off === false) t.integer('off');\n    if (process.env.COOP_LIMIT === '3') t.integer('env_three');\n    if (COOP.nothing === null) t.integer('nothing');\n    if (COOP.db.client.config.client === 'better-sqlite3') t.integer('on_sqlite');\n  });\n};\nexports.down = () => {};\n",
+        "const { env } = require('node:process');\nexports.up = async (knex) => {\n  await knex.schema.createTable('kinds', (t) => {\n    t.increments('id');\n    if (env.COOP_LIMIT === '3') t.integer('imported_env_three');\n    if (COOP.limit === 3) t.integer('three');\n    if (COOP.label === '3') t.integer('label_three');\n    if (COOP.off === false) t.integer('off');\n    if (process.env.COOP_LIMIT === '3') t.integer('env_three');\n    if (COOP.nothing === null) t.integer('nothing');\n    if (COOP.db.client.config.client === 'better-sqlite3') t.integer('on_sqlite');\n  });\n};\nexports.down = () => {};\n",
       ],
     ]);
     const r = await replayTree(only, {
@@ -90,7 +90,7 @@ describe('--knex-assume (oracle: Knex 3 on better-sqlite3, run with the same set
     expect(r.diagnostics.filter((d) => d.code === 'knex/condition-unknown')).toEqual([]);
     const kinds = tablesOf(r.steps[r.steps.length - 1]!.snapshot)[0]!;
     // (`.client` of a value not known is a knex instance's, decided by the knexfile's client)
-    expect(kinds.columns.map((c) => c.name)).toEqual(['id', 'three', 'label_three', 'off', 'env_three', 'nothing', 'on_sqlite']);
+    expect(kinds.columns.map((c) => c.name)).toEqual(['id', 'imported_env_three', 'three', 'label_three', 'off', 'env_three', 'nothing', 'on_sqlite']);
   });
 
   it('a condition on knex.client with no client known names --knex-client', async () => {

@@ -919,6 +919,11 @@ class FileCompiler {
         return { imp: b.imp, name: b.name, ...(b.path ? { path: b.path } : {}) };
       case 'alias':
         return this.aliasVal(b.chain, name);
+      case 'pkg':
+        // Node's process module imported (`const { env } = require('process')`): read as the
+        // global is, so that its settings have the paths --knex-assume names (`process.env.X`)
+        if (b.module === 'process' || b.module === 'node:process') return b.name === '*' || b.name === 'default' ? { expr: 'process' } : { at: { expr: 'process' }, key: b.name };
+        return { expr: name };
       default:
         return { expr: name };
     }
