@@ -1,7 +1,7 @@
 import { posix } from 'node:path';
 import { BlobMemo, sortedIndex, sortedUnique, type AdapterOptionValues, type Diagnostic, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
 import type { Cond, Val } from './knex-facts.js';
-import { isArr, isObj, member, parseKnexSource, runtimeImportsOf } from './knex-parse.js';
+import { isArr, isObj, isUndeclaredName, member, parseKnexSource, runtimeImportsOf } from './knex-parse.js';
 import { knexOptions, type AssumedValue, type KnexOptions } from './knex-config.js';
 
 const SOURCE_EXTENSIONS = ['.js', '.cjs', '.mjs', '.ts', '.cts', '.mts'];
@@ -63,7 +63,7 @@ type Plain = string | number | boolean | null | undefined | Plain[] | { [k: stri
 function readPath(v: Val): string | null {
   if (v === null || typeof v !== 'object') return null;
   if ('env' in v) return `process.env.${v.env}`;
-  if ('expr' in v) return /^(?!function$)[A-Za-z_$][\w$]*$/.test(v.expr) ? v.expr : null;
+  if ('expr' in v) return isUndeclaredName(v.expr) ? v.expr : null;
   if ('at' in v && (typeof v.key === 'string' || typeof v.key === 'number')) {
     const base = readPath(v.at);
     return base === null ? null : `${base}.${v.key}`;

@@ -54,6 +54,14 @@ const PROMISE_SERIES = new Set(['each', 'mapSeries', 'map', 'mapSync']);
 const CONFIG_KEYS = new Set(['client', 'dialect', 'connection', 'migrations', 'useNullAsDefault', 'pool', 'searchPath']);
 
 /** Is a relative module specifier (a file of the project)? */
+/**
+ * Whether an `{ expr }` value's text is a name the file does not declare (the parse keeps such a
+ * name as its text; `function` is its text of a method, not a name).
+ */
+export function isUndeclaredName(text: string): boolean {
+  return /^(?!function$)[A-Za-z_$][\w$]*$/.test(text);
+}
+
 export function isRelative(spec: string): boolean {
   return spec.startsWith('./') || spec.startsWith('../') || spec === '.' || spec === '..';
 }

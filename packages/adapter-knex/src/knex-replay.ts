@@ -1,7 +1,7 @@
 import type { Diagnostic, GeneratedKind, NeutralType, Origin, ReferentialAction } from '@schema-strata/core/extract';
 import { tableId } from '@schema-strata/core/extract';
 import type { Arg, Chain, Cond, FnIR, KnexFacts, Param, Root, Stmt, Val } from './knex-facts.js';
-import { isObj } from './knex-parse.js';
+import { isObj, isUndeclaredName } from './knex-parse.js';
 import { PMap } from './knex-pmap.js';
 import { TrackedMap, type MapAccess } from './knex-track.js';
 import {
@@ -555,7 +555,7 @@ export class Replay {
     }
     if ('undef' in v) return undefined;
     // a name the file never declares (the parse leaves it as its text), and process.env.NAME
-    if ('expr' in v && GLOBAL_NAME.test(v.expr)) return this.globalRead(v.expr);
+    if ('expr' in v && isUndeclaredName(v.expr)) return this.globalRead(v.expr);
     if ('env' in v) return this.globalRead(`process.env.${v.env}`);
     return new Opaque(valText(v));
   }
@@ -1547,8 +1547,6 @@ function callbackMayChange(c: { args?: Arg[] }): boolean {
 }
 
 const NO_ASSUMPTIONS: ReadonlyMap<string, AssumedValue> = new Map();
-/** An identifier (the parse's text of a name the file does not declare; `function` is its text of a method). */
-const GLOBAL_NAME = /^(?!function$)[A-Za-z_$][\w$]*$/;
 /** Noted among the unknown reads when `knex.client` is read and the run's client is not known. */
 const CLIENT_READ = '\u0000client';
 

@@ -3,7 +3,7 @@ import type {
   AdapterOptionValues, AssembleInput, AssembleResult, Column, Diagnostic, ForeignKey, GeneratedKind, Origin, ReferentialAction,
   SnapshotInput, UniqueConstraint,
 } from '@schema-strata/core/extract';
-import { readSettings, type TypeormSettings } from './typeorm-config.js';
+import { ENTITY_DECORATORS, readSettings, type TypeormSettings } from './typeorm-config.js';
 import {
   classKey, DecoratorReader, schemaKey,
   type ColumnArgs, type ColumnOpts, type EmbeddedArgs, type JoinColumnOpts, type RelationArgs, type TargetArgs, type UniqueArgs,
@@ -469,7 +469,8 @@ class Builder {
     const settingOf = (key: string): { value: E; from: (typeof configs)[number] } | undefined => {
       if (!withType) return undefined;
       const own = get(withType.o, key);
-      if (own !== undefined || !withType.cfg.settingsOnly) return own === undefined ? undefined : { value: own, from: withType };
+      if (own !== undefined) return { value: own, from: withType };
+      if (!withType.cfg.settingsOnly) return undefined;
       const shared = configs.find((c) => c.file === withType.file && !c.cfg.settingsOnly && get(c.o, key) !== undefined);
       return shared ? { value: get(shared.o, key), from: shared } : undefined;
     };
@@ -689,7 +690,7 @@ class Builder {
       const isEntity = this.cached(this.cache.isEntity, key, () => {
         this.project.touch(file);
         const { decos } = this.reader.resolveUses(c.decorators, file);
-        return decos.some((d) => d.name === 'Entity' || d.name === 'ChildEntity' || d.name === 'ViewEntity');
+        return decos.some((d) => ENTITY_DECORATORS.has(d.name));
       });
       if (!isEntity) continue;
       const a = this.args(key)!;

@@ -9,6 +9,9 @@ export const TYPEORM_DECORATORS = [
   'RelationId', 'RelationCount', 'Index', 'Unique', 'Check', 'Exclusion', 'ForeignKey',
 ] as const;
 
+/** TypeORM's class decorators that make a class an entity (or a view). */
+export const ENTITY_DECORATORS: ReadonlySet<string> = new Set(['Entity', 'ChildEntity', 'ViewEntity']);
+
 /** Options of the TypeORM adapter (shown by `schema-strata extract --help`). */
 export const TYPEORM_OPTIONS: readonly AdapterOption[] = Object.freeze([
   {

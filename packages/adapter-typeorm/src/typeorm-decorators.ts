@@ -1,5 +1,5 @@
 import type { Origin } from '@schema-strata/core/extract';
-import type { TypeormSettings } from './typeorm-config.js';
+import { ENTITY_DECORATORS, type TypeormSettings } from './typeorm-config.js';
 import {
   enumValuesOf, get, isArrE, isDecoE, isFnE, isObjE, isSymE, isUnk, numOf, str, symName, textOf,
   type DecoE, type DesignResult, type E, type Project, type Sym,
@@ -705,9 +705,6 @@ export class DecoratorReader {
     return a;
   }
 }
-
-/** TypeORM's class decorators that make a class an entity (or a view). */
-const ENTITY_DECORATORS = new Set(['Entity', 'ChildEntity', 'ViewEntity']);
 
 /** Decorators that make a property part of the table (columns, relations, embedded). */
 const PHYSICAL = new Set([

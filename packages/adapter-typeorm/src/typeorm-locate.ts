@@ -1,6 +1,6 @@
 import { posix } from 'node:path';
 import { BlobMemo, detach, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
-import { readSettings, TYPEORM_DECORATORS } from './typeorm-config.js';
+import { ENTITY_DECORATORS, readSettings, TYPEORM_DECORATORS } from './typeorm-config.js';
 import {
   extendsTarget, globMatcher, isDeclarationFile, isTestPath, ModuleResolver, nearestTsconfig, packagesByName, parsePackageJson, ResolutionMemo, sourceGlobs, SOURCE_FILE, tsconfigView,
   workspacePackage, type PackageFact, type TsconfigView, type WorkspacePackage,
@@ -68,7 +68,7 @@ function scanText(text: string, entityDecorators: readonly string[]): Scan {
   const reexports = new Set<string>();
   for (const m of text.matchAll(REEXPORT_RE)) reexports.add(m[1]!);
   // (copies: a match is a slice that would keep the whole text alive as long as the scan is memoised)
-  return { entity, typeorm, config, imports: detach([...imports]), reexports: detach([...reexports]) };
+  return { entity, typeorm, config, ...detach({ imports: [...imports], reexports: [...reexports] }) };
 }
 
 const scanMemo = new Map<string, Map<string, Scan>>();
@@ -285,7 +285,7 @@ export async function locateTypeorm(tree: TreeView, req: LocateRequest): Promise
 
 function entityDecorators(req: LocateRequest): string[] {
   const settings = readSettings(req.options);
-  return [...settings.decorators].filter(([, t]) => t === 'Entity' || t === 'ChildEntity' || t === 'ViewEntity').map(([n]) => n);
+  return [...settings.decorators].filter(([, t]) => ENTITY_DECORATORS.has(t)).map(([n]) => n);
 }
 
 const entityDecoratorSig = (req: LocateRequest): string => entityDecorators(req).join(',');
