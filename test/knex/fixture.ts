@@ -6,7 +6,7 @@ import { join, dirname } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { execFileSync } from 'node:child_process';
 import { writeRepository, type Diagnostic, type ScriptedCommit, type SnapshotInput, type Table } from '@schema-strata/core';
-import knexAdapter, { KnexSession, knexOptions, parseKnexSource, type KnexFacts } from '@schema-strata/adapter-knex';
+import knexAdapter, { KnexSession, knexOptions, parseKnexFile, type KnexFacts } from '@schema-strata/adapter-knex';
 
 export const FIXTURES = join(dirname(fileURLToPath(import.meta.url)), '..', 'fixtures', 'knex');
 
@@ -89,12 +89,16 @@ export async function replayTree(
     under: (d: string) => [...tree.keys()].filter((p) => d === '' || p.startsWith(d + '/')).sort(),
   };
   const located = await knexAdapter.locate(view, { options });
-  const files = [...new Set(located.files)].sort().map((path) => {
-    const r = parseKnexSource(tree.get(path)!);
-    return { path, blob: view.blob(path)!, ...(r.ok ? { facts: r.facts as KnexFacts } : {}) };
-  });
+  const parse = (paths: Iterable<string>) =>
+    [...new Set(paths)].sort().map((path) => {
+      const r = parseKnexFile({ path, blob: view.blob(path)!, text: tree.get(path)! });
+      return { path, blob: view.blob(path)!, ...(r.ok ? { facts: r.facts as KnexFacts } : {}) };
+    });
+  const files = parse(located.files);
+  // (the adapter reads the files its locate step consulted: core hands their facts over)
+  const consulted = parse(located.consulted ?? []).filter((f) => f.facts);
   const session = new KnexSession(knexOptions(options));
-  const r = session.assemble({ files: files.filter((f) => f.facts), missing: files.filter((f) => !f.facts).map((f) => f.path) });
+  const r = session.assemble({ files: files.filter((f) => f.facts), missing: files.filter((f) => !f.facts).map((f) => f.path), consulted });
   return { steps: session.trace(), diagnostics: 'diagnostics' in r ? r.diagnostics : [] };
 }
 

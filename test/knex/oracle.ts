@@ -3,7 +3,7 @@
 // migration source, lib/migrations/migrate/sources/fs-migrations.js, over the directories the
 // fixture's knexfile names), on SQLite (better-sqlite3) or on PostgreSQL (PGlite); the
 // database is introspected after each migration.
-import { mkdirSync, mkdtempSync, symlinkSync, writeFileSync } from 'node:fs';
+import { cpSync, mkdirSync, mkdtempSync, symlinkSync, writeFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { tmpdir } from 'node:os';
 import { dirname, extname, isAbsolute, join, resolve } from 'node:path';
@@ -159,6 +159,13 @@ export interface RunOptions {
   clientName?: string;
   /** PGlite: the connection's `searchPath`, as a knexfile configures it. */
   searchPath?: string[];
+  /**
+   * Workspace packages of the tree, installed as a package manager links them
+   * (`node_modules/NAME` -> the package's directory), and built as their build would: the
+   * compiled files of `dir/src` copied to `dir/build` (what `tsc` does with that rootDir and
+   * outDir), so that Node loads the package by its package.json's `main`.
+   */
+  packages?: Array<{ name: string; dir: string; build: string }>;
 }
 
 /**
@@ -178,6 +185,13 @@ export class KnexProject {
 
   static async open(tree: Map<string, string>, opts: RunOptions): Promise<KnexProject> {
     const { src, out } = materialise(tree);
+    for (const p of opts.packages ?? []) {
+      writeFileSync(join(out, p.dir, 'package.json'), tree.get(`${p.dir}/package.json`)!);
+      cpSync(join(out, p.dir, 'src'), join(out, p.dir, p.build), { recursive: true });
+      const link = join(out, 'node_modules', p.name);
+      mkdirSync(dirname(link), { recursive: true });
+      symlinkSync(join(out, p.dir), link);
+    }
     const knexfile = [...tree.keys()].find((p) => /^knexfile\.(js|ts|cjs|mjs)$/.test(p));
     let migrationsConfig: { directory?: string | string[]; loadExtensions?: string[]; sortDirsSeparately?: boolean } = {};
     if (knexfile) {

@@ -30,6 +30,8 @@ export const knexAdapter: SchemaAdapter<KnexFacts> = Object.freeze({
   watch: KNEX_WATCH,
   locate: locateKnex,
   parseFile: (file: SourceFile) => parseKnexFile(file),
+  // the assembly resolves imports of the repository's own packages by their package.json files
+  readsConsulted: true,
   assemble: assembleKnex,
   createSession: (options: AdapterOptionValues) => new KnexSession(knexOptions(options)),
   renderDemo: renderKnexDemo,

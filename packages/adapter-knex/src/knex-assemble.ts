@@ -7,9 +7,9 @@ import type {
   Diagnostic,
   SnapshotInput,
 } from '@schema-strata/core/extract';
-import type { KnexFacts } from './knex-facts.js';
+import type { KnexFacts, PackageInfo } from './knex-facts.js';
 import { knexOptions, type KnexOptions } from './knex-config.js';
-import { isKnexfile, knexfileSettings, migrationIndices, resolveImport } from './knex-locate.js';
+import { isKnexfile, knexfileSettings, migrationIndices, resolveImport, resolvePackageSpec, splitPackageSpec } from './knex-locate.js';
 import { PMap } from './knex-pmap.js';
 import { EMPTY_STATE, Replay, type FileContext, type ReplayCounters, type SchemaState, type StateAccess, type TableState, type ViewState } from './knex-replay.js';
 import { untouchedBy, type MapLike } from './knex-track.js';
@@ -77,16 +77,43 @@ const contextOfInput = new WeakMap<object, FileContext>();
 
 type InputFile = AssembleInput<KnexFacts>['files'][number] & { facts: KnexFacts };
 
+/** The workspace packages of a version (the package.json files its locate step consulted), by name. */
+type Workspace = ReadonlyMap<string, { dir: string; info: PackageInfo }>;
+const NO_PACKAGES: Workspace = new Map();
+
+/** The workspace packages of a version, from the facts of the package.json files its locate step consulted. */
+function workspaceOf(input: AssembleInput<KnexFacts>): Workspace {
+  let out: Map<string, { dir: string; info: PackageInfo }> | null = null;
+  for (const f of input.consulted ?? []) {
+    const info = f.facts?.package;
+    if (!info) continue;
+    out ??= new Map();
+    if (!out.has(info.name)) out.set(info.name, { dir: f.path === 'package.json' ? '' : f.path.slice(0, -'/package.json'.length), info });
+  }
+  return out ?? NO_PACKAGES;
+}
+
+/** Whether a file loads one of the workspace packages. */
+function usesWorkspace(facts: KnexFacts, packages: Workspace): boolean {
+  if (!facts.packages || packages.size === 0) return false;
+  return facts.packages.some((spec) => packages.has(splitPackageSpec(spec).name));
+}
+
 /**
  * The replay's view of a file; reused across versions while its facts are the same and it
  * imports nothing (core hands the same input object while a path keeps its blob).
  */
-function fileContext(file: InputFile, paths: { has(p: string): boolean }): FileContext {
+function fileContext(file: InputFile, paths: { has(p: string): boolean }, packages: Workspace): FileContext {
   const { path, facts } = file;
-  if (facts.imports.length > 0) {
+  if (facts.imports.length > 0 || usesWorkspace(facts, packages)) {
     const imports = new Map<string, string>();
+    const has = (p: string): boolean => paths.has(p);
     for (const spec of facts.imports) {
-      const target = resolveImport(path, spec, (p) => paths.has(p));
+      const target = resolveImport(path, spec, has);
+      if (target) imports.set(spec, target);
+    }
+    for (const spec of facts.packages ?? []) {
+      const target = resolvePackageSpec(spec, packages, has);
       if (target) imports.set(spec, target);
     }
     return { path, facts, imports };
@@ -116,6 +143,7 @@ export class FileLookup {
   constructor(
     private readonly input: AssembleInput<KnexFacts>['files'],
     private readonly paths: { has(p: string): boolean },
+    private readonly packages: Workspace = NO_PACKAGES,
   ) {}
 
   get(path: string): FileContext | undefined {
@@ -138,7 +166,7 @@ export class FileLookup {
     if (!ctx) {
       const f = this.input[i]!;
       if (!f.facts) return undefined;
-      ctx = fileContext(f as InputFile, this.paths);
+      ctx = fileContext(f as InputFile, this.paths, this.packages);
       this.made.set(i, ctx);
     }
     return ctx;
@@ -197,7 +225,8 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
   const all = input.files.map((f) => f.path);
   let pathSet: Set<string> | null = null;
   const paths = { has: (p: string): boolean => (pathSet ??= new Set([...all, ...input.missing])).has(p) };
-  const files = new FileLookup(input.files, paths);
+  const packages = workspaceOf(input);
+  const files = new FileLookup(input.files, paths, packages);
   let blobs: Map<string, string> | null = null;
   const blobOf = (p: string): string => (blobs ??= new Map(input.files.map((f) => [f.path, f.blob]))).get(p) ?? '';
 
@@ -298,13 +327,14 @@ export function planVersion(input: AssembleInput<KnexFacts>, options: KnexOption
   };
   const entry = (path: string, role: PlanEntry['role'], at?: number): PlanEntry => {
     const file = at === undefined ? files.get(path) : at >= 0 ? files.at(at) : undefined;
-    if (file && file.facts.imports.length === 0) return plainEntry(file, role);
+    if (file && file.facts.imports.length === 0 && !usesWorkspace(file.facts, packages)) return plainEntry(file, role);
     const own = file ? factsKey(file.facts) : `missing:${blobOf(path)}`;
     return { path, role, ...(file ? { file } : {}), key: `${role}|${path}|${own}|${file ? depKey(path) : ''}` };
   };
   const entries = [...init.map((p) => entry(p, 'init')), ...found.map((f) => entry(f.path, 'migration', f.at))];
   const plan: VersionPlan = { dialect, ...(client ? { client } : {}), ...(schema ? { schema } : {}), entries, files, diagnostics };
-  if (settings && !several && !fromSources && input.missing.length === 0 && input.files.every((f) => f.facts && !f.stale && f.facts.imports.length === 0)) {
+  // (not with workspace packages: a file that loads one imports another)
+  if (settings && !several && !fromSources && packages.size === 0 && input.missing.length === 0 && input.files.every((f) => f.facts && !f.stale && f.facts.imports.length === 0)) {
     plan.appendable = { dir: settings.directories[0]!, loadExtensions: settings.loadExtensions, lastName: found.length > 0 ? found[found.length - 1]!.name : null };
   }
   return plan;
@@ -328,7 +358,7 @@ function plainEntry(file: FileContext, role: PlanEntry['role']): PlanEntry {
  */
 export function appendedPlan(last: VersionPlan, lastFiles: AssembleInput<KnexFacts>['files'], input: AssembleInput<KnexFacts>, options: KnexOptions): VersionPlan | null {
   const a = last.appendable;
-  if (!a || input.missing.length > 0) return null;
+  if (!a || input.missing.length > 0 || workspaceOf(input).size > 0) return null;
   const files = input.files;
   const added: InputFile[] = [];
   let i = 0;
@@ -350,7 +380,7 @@ export function appendedPlan(last: VersionPlan, lastFiles: AssembleInput<KnexFac
     const name = baseName(f.path);
     if (lastName !== null && cmp(lastName, name) >= 0) return null;
     lastName = name;
-    entries.push(plainEntry(fileContext(f, NO_PATHS), 'migration'));
+    entries.push(plainEntry(fileContext(f, NO_PATHS, NO_PACKAGES), 'migration'));
   }
   return {
     dialect: last.dialect,

@@ -14,8 +14,13 @@ export type Val =
   | null
   | { arr: Val[] }
   | { obj: Array<[string, Val]> }
-  /** A binding imported from another file of the project: its specifier, export name ('default', '*') and a member path. */
-  | { imp: string; name: string; path?: string[] }
+  /**
+   * A binding imported from another file of the project: its specifier, export name ('default',
+   * '*') and a member path. For a package (a bare specifier), `as` is the local name: the package
+   * is followed when it is one of the repository's own (a workspace package), else the value is
+   * the name's, as for a name the file never declares.
+   */
+  | { imp: string; name: string; path?: string[]; as?: string }
   /** A variable of the enclosing function (a parameter or a loop variable), bound at replay. */
   | { local: string; path?: string[] }
   /** String concatenation or a template literal. */
@@ -133,6 +138,13 @@ export type Stmt =
 /** What a file exports: a value, or a function of this file (a key of `fns`). */
 export type ExportEntry = { val: Val } | { fn: string };
 
+/** A package.json's name and entry points (from its text alone). */
+export interface PackageInfo {
+  name: string;
+  /** Entry points in the order they are tried: `source`, `exports` (require, node, default, import), `main`, `module`. */
+  entries: string[];
+}
+
 export interface KnexFacts {
   /** The migration's `up` function (a key of `fns`), when the file has one. */
   up?: string;
@@ -149,6 +161,13 @@ export interface KnexFacts {
   reexports?: string[];
   /** Relative import specifiers (`./x`, `../y.js`), in order of appearance. */
   imports: string[];
+  /**
+   * Bare specifiers the file loads when it runs (`@coop/names`, `lodash`), Node's own modules
+   * aside, in order of appearance: those that name a workspace package are followed.
+   */
+  packages?: string[];
+  /** Set for a package.json: what module resolution needs of it. */
+  package?: PackageInfo;
   /** The default export when it looks like a Knex configuration (knexfiles). */
   config?: Val;
 }

@@ -1,7 +1,7 @@
 import { posix } from 'node:path';
 import { BlobMemo, sortedIndex, sortedUnique, type AdapterOptionValues, type Diagnostic, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
-import type { Cond, Val } from './knex-facts.js';
-import { isArr, isObj, isUndeclaredName, member, parseKnexSource, runtimeImportsOf } from './knex-parse.js';
+import type { Cond, PackageInfo, Val } from './knex-facts.js';
+import { isArr, isObj, isProjectPackage, isUndeclaredName, member, packageInfo, parseKnexSource, runtimeImportsOf, runtimePackagesOf } from './knex-parse.js';
 import { knexOptions, type AssumedValue, type KnexOptions } from './knex-config.js';
 
 const SOURCE_EXTENSIONS = ['.js', '.cjs', '.mjs', '.ts', '.cts', '.mts'];
@@ -14,7 +14,7 @@ const KNEXFILE = /^knexfile\.(js|ts|cjs|mjs|cts|mts)$/;
  * anywhere in the project). One glob for the six extensions (.js .cjs .mjs .ts .cts .mts):
  * git's log pass matches every watched glob against every changed path, so fewer is faster.
  */
-export const KNEX_WATCH = ['**/*.*[jt]s'];
+export const KNEX_WATCH = ['**/*.*[jt]s', '**/package.json'];
 
 /** Knex's default `migrations.loadExtensions` (lib/migrations/common/MigrationsLoader.js). */
 export const DEFAULT_LOAD_EXTENSIONS = ['.co', '.coffee', '.eg', '.iced', '.js', '.cjs', '.litcoffee', '.ls', '.ts'];
@@ -64,6 +64,8 @@ function readPath(v: Val): string | null {
   if (v === null || typeof v !== 'object') return null;
   if ('env' in v) return `process.env.${v.env}`;
   if ('expr' in v) return isUndeclaredName(v.expr) ? v.expr : null;
+  // a package's value (not one of the project's: the knexfile reader follows no package)
+  if ('imp' in v && v.as !== undefined) return isUndeclaredName(v.as) ? [v.as, ...(v.path ?? [])].join('.') : null;
   if ('at' in v && (typeof v.key === 'string' || typeof v.key === 'number')) {
     const base = readPath(v.at);
     return base === null ? null : `${base}.${v.key}`;
@@ -323,25 +325,122 @@ async function looksLikeKnexMigration(tree: TreeView, path: string): Promise<boo
   return looks ?? false;
 }
 
-/** The files the given ones import from the project, transitively (at most `limit` files). */
-async function importClosure(tree: TreeView, start: readonly string[], skip: ReadonlySet<string>, limit = 500): Promise<{ files: string[]; anyImports: boolean }> {
+/** A package of the repository (a workspace package): the directory of its package.json and what it says. */
+export interface WorkspacePackage {
+  /** The package.json's path. */
+  file: string;
+  /** Its directory ('' at the root). */
+  dir: string;
+  info: PackageInfo;
+}
+
+const packageMemo = new BlobMemo<PackageInfo | null>();
+const packageImportMemo = new BlobMemo<string[]>();
+
+const isPackageJson = (p: string): boolean => (p === 'package.json' || p.endsWith('/package.json')) && !p.includes('node_modules/');
+
+/** The repository's own packages at this commit (every package.json with a name, node_modules aside), by name; the first by path wins. */
+async function workspacePackages(tree: TreeView): Promise<Map<string, WorkspacePackage>> {
+  const out = new Map<string, WorkspacePackage>();
+  for (const p of [...tree.paths()].filter(isPackageJson).sort()) {
+    const info = await packageMemo.of(tree, p, (text) => (text === undefined ? null : packageInfo(text)));
+    if (info && !out.has(info.name)) out.set(info.name, { file: p, dir: p === 'package.json' ? '' : p.slice(0, -'/package.json'.length), info });
+  }
+  return out;
+}
+
+/** The package name of a bare specifier (`@coop/names/tables` -> `@coop/names`) and the subpath after it. */
+export function splitPackageSpec(spec: string): { name: string; sub: string } {
+  const parts = spec.split('/');
+  const n = spec.startsWith('@') ? 2 : 1;
+  return { name: parts.slice(0, n).join('/'), sub: parts.slice(n).join('/') };
+}
+
+/**
+ * The file a bare specifier stands for when it names a workspace package: its entry point as a
+ * file of the repository (`source`, `exports`, `main`, `module`, each as written, or its `.ts`
+ * source, or, for compiled output that is not committed (`dist/cjs/index.js`), the same path
+ * under `src/` with the build directories left out), else `src/index` or `index`; a subpath
+ * (`@coop/names/tables`) under the package's directory or its `src/`. Undefined when the
+ * specifier names no workspace package, or none of those files is there.
+ */
+export function resolvePackageSpec(spec: string, packages: ReadonlyMap<string, { dir: string; info: PackageInfo }>, has: (p: string) => boolean): string | undefined {
+  const { name, sub } = splitPackageSpec(spec);
+  const pkg = packages.get(name);
+  if (!pkg) return undefined;
+  // resolved as a relative specifier of a file in the package's directory
+  const from = pkg.dir ? `${pkg.dir}/package.json` : 'package.json';
+  const rel = (p: string): string | undefined => resolveImport(from, `./${p}`, has);
+  if (sub) return rel(sub) ?? rel(`src/${sub}`);
+  for (const entry of pkg.info.entries) {
+    const e = posix.normalize(entry).replace(/^\.\//, '');
+    if (e.startsWith('..') || /\.d\.[cm]?ts$/.test(e)) continue;
+    const direct = rel(e);
+    if (direct) return direct;
+    // compiled output: the same file under src/, without one build directory or more
+    const parts = e.split('/');
+    for (let k = 1; k < parts.length; k++) {
+      const got = rel(['src', ...parts.slice(k)].join('/'));
+      if (got) return got;
+    }
+  }
+  return rel('src/index') ?? rel('index');
+}
+
+/** Bare specifiers a file loads when it runs that could name a package of the project (a quick scan first, then a parse). */
+async function packageImportsOf(tree: TreeView, path: string): Promise<string[]> {
+  return (
+    (await packageImportMemo.of(tree, path, (text) => {
+      if (text === undefined) return [];
+      const re = /(?:\bfrom\s*|\brequire\s*\(\s*|\bimport\s*\(\s*|\bimport\s+)(['"])([^'"\n.][^'"\n]*)\1/g;
+      let any = false;
+      for (let m = re.exec(text); m && !any; m = re.exec(text)) any = isProjectPackage(m[2]!);
+      return any ? runtimePackagesOf(text) : [];
+    })) ?? []
+  );
+}
+
+/**
+ * The files the given ones import from the project, transitively (at most `limit` files): by
+ * relative specifiers, and by bare ones that name a workspace package (`packages`), whose
+ * package.json files are returned as `manifests`.
+ */
+async function importClosure(
+  tree: TreeView, start: readonly string[], skip: ReadonlySet<string>, packages: ReadonlyMap<string, WorkspacePackage>, limit = 500,
+): Promise<{ files: string[]; anyImports: boolean; manifests: string[] }> {
   const seen = new Set(start);
   const queue = [...start];
   const out: string[] = [];
+  const manifests = new Set<string>();
   let anyImports = false;
+  const has = (x: string): boolean => tree.has(x);
   for (let head = 0; head < queue.length && out.length < limit; head++) {
     const p = queue[head]!;
+    const targets: string[] = [];
     const specs = await importsOf(tree, p);
     if (specs.length > 0) anyImports = true;
     for (const spec of specs) {
-      const target = resolveImport(p, spec, (x) => tree.has(x));
-      if (!target || seen.has(target) || skip.has(target)) continue;
+      const target = resolveImport(p, spec, has);
+      if (target) targets.push(target);
+    }
+    if (packages.size > 0) {
+      for (const spec of await packageImportsOf(tree, p)) {
+        const w = packages.get(splitPackageSpec(spec).name);
+        if (!w) continue;
+        anyImports = true;
+        manifests.add(w.file);
+        const target = resolvePackageSpec(spec, packages, has);
+        if (target) targets.push(target);
+      }
+    }
+    for (const target of targets) {
+      if (seen.has(target) || skip.has(target)) continue;
       seen.add(target);
       out.push(target);
       queue.push(target);
     }
   }
-  return { files: out, anyImports };
+  return { files: out, anyImports, manifests: [...manifests].sort() };
 }
 
 function normalisePath(p: string): string {
@@ -414,7 +513,7 @@ async function carryForward(tree: TreeView, last: Carried, changed: readonly str
   });
   let files = last.files;
   for (const p of changed) {
-    if (isKnexfile(p) || last.initNamed.includes(p)) return null;
+    if (isKnexfile(p) || last.initNamed.includes(p) || isPackageJson(p)) return null;
     const parent = posix.dirname(p);
     const dir = parent === '.' ? '' : parent;
     if (!last.directories.includes(dir)) continue;
@@ -423,6 +522,8 @@ async function carryForward(tree: TreeView, last: Carried, changed: readonly str
     if (got.fromSources) return null;
     if (got.files.length === 0) continue;
     if ((await importsOf(tree, p)).length > 0) return null;
+    // (a package it loads may be a workspace package: located afresh, which follows it)
+    if ((await packageImportsOf(tree, p)).length > 0) return null;
     files = withInserted(files, p);
   }
   return files === last.files ? last : { ...last, files };
@@ -517,7 +618,7 @@ export async function locateKnex(tree: TreeView, req: LocateRequest): Promise<Lo
   }
   const core = [...init, ...migrations];
   const skip = new Set<string>([...core, ...(found?.knexfile ? [found.knexfile] : [])]);
-  const closure = await importClosure(tree, core, skip);
+  const closure = await importClosure(tree, core, skip, await workspacePackages(tree));
   const helpers = closure.files;
   const files = [...(found?.knexfile ? [found.knexfile] : []), ...core, ...helpers];
   // the next commit of the walk may start from this one (see carryForward)
@@ -528,5 +629,10 @@ export async function locateKnex(tree: TreeView, req: LocateRequest): Promise<Lo
       loadExtensions: found!.settings.loadExtensions, files: sortedUnique([kf, ...init, ...migrations]),
     });
   }
-  return { files, searched: SEARCHED, ...(diagnostics.length ? { diagnostics } : {}) };
+  return {
+    files, searched: SEARCHED,
+    // the package.json files of the workspace packages followed: the assembly resolves their names by them
+    ...(closure.manifests.length ? { consulted: closure.manifests } : {}),
+    ...(diagnostics.length ? { diagnostics } : {}),
+  };
 }

@@ -1,6 +1,6 @@
-import { createRequire } from 'node:module';
+import { builtinModules, createRequire } from 'node:module';
 import { detach, type Diagnostic, type FileFacts, type SourceFile } from '@schema-strata/core/extract';
-import type { Arg, Call, Chain, Cond, ExportEntry, FnIR, FnRef, KnexFacts, Param, Root, Stmt, Val } from './knex-facts.js';
+import type { Arg, Call, Chain, Cond, ExportEntry, FnIR, FnRef, KnexFacts, PackageInfo, Param, Root, Stmt, Val } from './knex-facts.js';
 
 type TsModule = typeof import('ts-morph').ts;
 type Node = import('ts-morph').ts.Node;
@@ -62,6 +62,18 @@ export function isUndeclaredName(text: string): boolean {
   return /^(?!function$)[A-Za-z_$][\w$]*$/.test(text);
 }
 
+const NODE_MODULES = new Set(builtinModules);
+
+/** One of Node's own modules (`fs`, `node:path`)? */
+export function isNodeModule(spec: string): boolean {
+  return spec.startsWith('node:') || NODE_MODULES.has(spec) || NODE_MODULES.has(spec.split('/')[0]!);
+}
+
+/** A bare specifier that could name a package of the project (not Node's own, not Knex). */
+export function isProjectPackage(spec: string): boolean {
+  return !isRelative(spec) && !spec.startsWith('/') && !isNodeModule(spec) && spec !== 'knex' && !spec.startsWith('knex/');
+}
+
 export function isRelative(spec: string): boolean {
   return spec.startsWith('./') || spec.startsWith('../') || spec === '.' || spec === '..';
 }
@@ -111,8 +123,13 @@ class FileCompiler {
     return s.length > 200 ? s.slice(0, 197) + '...' : s;
   }
 
+  /** Whether the file names a package that could be one of the project's (see `KnexFacts.packages`). */
+  packageImports = false;
+
   private addImport(spec: string): void {
-    if (isRelative(spec) && !this.imports.includes(spec)) this.imports.push(spec);
+    if (isRelative(spec)) {
+      if (!this.imports.includes(spec)) this.imports.push(spec);
+    } else if (isProjectPackage(spec)) this.packageImports = true;
   }
 
   // ---------------------------------------------------------------- functions
@@ -931,7 +948,9 @@ class FileCompiler {
         // Node's process module imported (`const { env } = require('process')`): read as the
         // global is, so that its settings have the paths --knex-assume names (`process.env.X`)
         if (b.module === 'process' || b.module === 'node:process') return b.name === '*' || b.name === 'default' ? { expr: 'process' } : { at: { expr: 'process' }, key: b.name };
-        return { expr: name };
+        // Node's own modules are never the project's; another package may be (a workspace package)
+        if (isNodeModule(b.module)) return { expr: name };
+        return { imp: b.module, name: b.name, as: name };
       default:
         return { expr: name };
     }
@@ -1231,9 +1250,12 @@ class FileCompiler {
       if ('fn' in entry && name !== 'down') this.ensureFn(entry.fn);
     }
     // an import whose bindings serve only as types is elided by TypeScript: it is not followed
-    const runtime = this.imports.length > 0 ? new Set(runtimeImports(this.sf)) : null;
+    const modules = this.imports.length > 0 || this.packageImports ? runtimeModules(this.sf) : null;
+    const runtime = modules ? new Set(modules) : null;
     const imports = runtime ? this.imports.filter((spec) => runtime.has(spec)) : this.imports;
     const facts: KnexFacts = { fns: this.fns, exports, imports };
+    const packages = modules ? modules.filter(isProjectPackage) : [];
+    if (packages.length > 0) facts.packages = packages;
     const up = exports['up'];
     if (up && 'fn' in up) facts.up = up.fn;
     if (exports['down']) facts.down = true;
@@ -1356,17 +1378,23 @@ export function parseKnexSource(text: string): FileFacts<KnexFacts> {
  * whose bindings serve only as types), nor what is only in comments.
  */
 export function runtimeImports(sf: SourceFileNode): string[] {
+  return runtimeModules(sf).filter(isRelative);
+}
+
+/** The modules a file loads when it runs (see `runtimeImports`): relative specifiers and those of `isProjectPackage`. */
+export function runtimeModules(sf: SourceFileNode): string[] {
   const t = ts();
   const out: string[] = [];
+  const wanted = (spec: string): boolean => isRelative(spec) || isProjectPackage(spec);
   const add = (spec: string): void => {
-    if (isRelative(spec) && !out.includes(spec)) out.push(spec);
+    if (wanted(spec) && !out.includes(spec)) out.push(spec);
   };
   // imports that bind names: kept when one of the names is used outside a type
   const pending: Array<{ spec: string; names: string[]; at: number }> = [];
   const used = new Set<string>();
   const visit = (n: Node, inType: boolean): void => {
     if (t.isImportDeclaration(n)) {
-      if (!t.isStringLiteral(n.moduleSpecifier) || !isRelative(n.moduleSpecifier.text)) return;
+      if (!t.isStringLiteral(n.moduleSpecifier) || !wanted(n.moduleSpecifier.text)) return;
       const c = n.importClause;
       if (!c) add(n.moduleSpecifier.text);
       else if (!c.isTypeOnly) {
@@ -1410,9 +1438,53 @@ export function runtimeImportsOf(text: string): string[] {
   return detach(runtimeImports(t.createSourceFile('file.ts', text, t.ScriptTarget.Latest, false, t.ScriptKind.TS)));
 }
 
+/** The bare specifiers of `isProjectPackage` a source text loads when it runs (see `runtimeModules`). */
+export function runtimePackagesOf(text: string): string[] {
+  const t = ts();
+  return detach(runtimeModules(t.createSourceFile('file.ts', text, t.ScriptTarget.Latest, false, t.ScriptKind.TS)).filter(isProjectPackage));
+}
+
 /** `parseFile` of the adapter: the facts of one file, by its text. */
 export function parseKnexFile(file: SourceFile): FileFacts<KnexFacts> {
+  if (file.path === 'package.json' || file.path.endsWith('/package.json')) {
+    const info = packageInfo(file.text);
+    return { ok: true, facts: { fns: {}, exports: {}, imports: [], ...(info ? { package: info } : {}) } };
+  }
   return parseKnexSource(file.text);
 }
 
-export type { Arg, Call, Chain, Cond, FnIR, FnRef, KnexFacts, Root, Stmt, Val };
+/**
+ * What module resolution needs of a package.json's text: its name and entry points (`source`,
+ * the `exports` of `.` under require, node, default, import, then `main`, `module`); null when
+ * it is not JSON or has no name.
+ */
+export function packageInfo(text: string): PackageInfo | null {
+  let pkg: unknown;
+  try {
+    pkg = JSON.parse(text);
+  } catch {
+    return null;
+  }
+  if (!pkg || typeof pkg !== 'object' || Array.isArray(pkg)) return null;
+  const o = pkg as Record<string, unknown>;
+  if (typeof o.name !== 'string' || o.name === '') return null;
+  const entries: string[] = [];
+  const add = (v: unknown): void => {
+    if (typeof v === 'string' && v !== '' && !entries.includes(v)) entries.push(v);
+  };
+  add(o.source);
+  const conditions = (v: unknown, depth: number): void => {
+    if (typeof v === 'string') return add(v);
+    if (depth > 4 || !v || typeof v !== 'object' || Array.isArray(v)) return;
+    const c = v as Record<string, unknown>;
+    for (const k of ['require', 'node', 'default', 'import']) if (k in c) conditions(c[k], depth + 1);
+  };
+  const exp = o.exports;
+  if (exp && typeof exp === 'object' && !Array.isArray(exp) && '.' in exp) conditions((exp as Record<string, unknown>)['.'], 0);
+  else if (!(exp && typeof exp === 'object' && Object.keys(exp).some((k) => k.startsWith('.')))) conditions(exp, 0);
+  add(o.main);
+  add(o.module);
+  return { name: o.name, entries };
+}
+
+export type { Arg, Call, Chain, Cond, FnIR, FnRef, KnexFacts, PackageInfo, Root, Stmt, Val };

@@ -506,7 +506,7 @@ export class Replay {
       }
       return out;
     }
-    if ('imp' in v) return this.importValue(frame.file, v.imp, v.name, v.path, depth + 1);
+    if ('imp' in v) return this.importValue(frame.file, v.imp, v.name, v.path, depth + 1, v.as);
     if ('local' in v) {
       const got = frame.lookup(v.local);
       let cur: Runtime = got.found ? got.value : this.globalRead(v.local);
@@ -616,11 +616,14 @@ export class Replay {
     return new Opaque(String(key));
   }
 
-  private importValue(file: FileContext, spec: string, name: string, path?: readonly string[], depth = 0): Runtime {
+  /** `as`: for a package, the local name, whose value it is when the package is not one of the project's. */
+  private importValue(file: FileContext, spec: string, name: string, path?: readonly string[], depth = 0, as?: string): Runtime {
     const target = file.imports.get(spec);
     const ctx = target ? this.files.get(target) : undefined;
     let cur: Runtime = !ctx
-      ? new Opaque(`${name === '*' || name === 'default' ? '' : name + ' from '}'${spec}'`)
+      ? as !== undefined
+        ? this.value({ expr: as }, new Frame(file), depth + 1)
+        : new Opaque(`${name === '*' || name === 'default' ? '' : name + ' from '}'${spec}'`)
       : name === '*' ? new Namespace(ctx) : this.exportValue(ctx, name, depth + 1);
     for (const k of path ?? []) cur = this.member(cur, k, depth + 1);
     return cur;
@@ -1612,6 +1615,7 @@ export function valText(v: Val): string {
   if (v === null || typeof v !== 'object') return JSON.stringify(v);
   if ('expr' in v) return v.expr;
   if ('local' in v) return [v.local, ...(v.path ?? [])].join('.');
+  if ('imp' in v && v.as !== undefined) return [v.as, ...(v.path ?? [])].join('.');
   if ('imp' in v) return `${v.name === '*' || v.name === 'default' ? '' : v.name + ' from '}'${v.imp}'${v.path ? '.' + v.path.join('.') : ''}`;
   if ('env' in v) return `process.env.${v.env}`;
   if ('arr' in v) return `[${v.arr.map(valText).join(', ')}]`;
