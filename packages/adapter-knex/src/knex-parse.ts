@@ -1304,11 +1304,11 @@ function isBoolWhen(v: Val): v is { when: Cond; then: true; else: false } {
   return typeof v === 'object' && v !== null && 'when' in v && v.then === true && v.else === false;
 }
 
-/** A value the parse could not know at all (an arbitrary expression). */
-/** A value not known statically: an expression, or a member of one (`R.knex` with `R` from a package). */
+/** A value not known statically: an expression, a package's value, or a member of one (`R.knex` with `R` from a package). */
 export function isUnknown(v: Val): boolean {
   if (typeof v !== 'object' || v === null) return false;
-  return 'expr' in v || ('at' in v && typeof v.key === 'string' && isUnknown(v.at));
+  // (a package's value is known only at replay, and then only for a workspace package)
+  return 'expr' in v || ('imp' in v && v.as !== undefined) || ('at' in v && typeof v.key === 'string' && isUnknown(v.at));
 }
 
 /** Concatenate values, folding adjacent literals. */
