@@ -87,6 +87,52 @@ describe('a workspace package of names (oracle: Knex 3 on better-sqlite3, the pa
     expect(fromDatabase(oracle.final, 'sqlite')['tool']!.columns).toEqual(['id', 'label', 'shelf_code']);
   });
 
+  it('functions of a workspace package that are handed a builder are followed, as Knex runs them', async () => {
+    const helpers = new Map(tree);
+    helpers.set('packages/helpers/package.json', '{\n  "name": "@coop/helpers",\n  "main": "dist/index.js"\n}\n');
+    helpers.set('packages/helpers/src/index.ts', [
+      'export function stamps(t: any): void {',
+      '  t.timestamps(true, true);',
+      '}',
+      'export const withId = (knex: any, name: string) => knex.schema.createTable(name, (t: any) => {',
+      "  t.increments('id');",
+      '  stamps(t);',
+      '});',
+      '',
+    ].join('\n'));
+    helpers.set('db/migrations/20240303_shelves.js', [
+      "const { withId } = require('@coop/helpers');",
+      "const h = require('@coop/helpers');",
+      'exports.up = async (knex) => {',
+      "  await withId(knex, 'shelf');",
+      "  await knex.schema.createTable('bin', (t) => {",
+      "    t.increments('id');",
+      '    h.stamps(t);',
+      '  });',
+      '};',
+      'exports.down = () => {};',
+      '',
+    ].join('\n'));
+    const oracle = await runKnex(helpers, {
+      engine: 'sqlite', environment: 'development', each: true,
+      packages: [{ name: '@coop/names', dir: 'packages/names', build: 'dist/cjs' }, { name: '@coop/helpers', dir: 'packages/helpers', build: 'dist' }],
+    });
+    const r = await replayTree(helpers, { 'knex-environment': 'development' });
+    const steps = r.steps.filter((x) => x.role === 'migration');
+    expect(steps.map((x) => name(x.path))).toEqual(oracle.migrations);
+    steps.forEach((x, i) => {
+      expect(fromReplay(tablesOf(x.snapshot), 'sqlite'), `after ${oracle.migrations[i]}`).toEqual(fromDatabase(oracle.after[i]!.tables, 'sqlite'));
+    });
+    expect(r.diagnostics).toEqual([]);
+    expect(fromDatabase(oracle.final, 'sqlite')['bin']!.columns).toEqual(['id', 'created_at', 'updated_at']);
+    // a name the workspace package does not export: its code is in the repository, but no function of it is there
+    helpers.set('db/migrations/20240304_racks.js', "const h = require('@coop/helpers');\nexports.up = async (knex) => {\n  await knex.schema.createTable('rack', (t) => {\n    h.rackColumns(t);\n  });\n};\n");
+    const missing = await replayTree(helpers, { 'knex-environment': 'development' });
+    expect(missing.diagnostics.map((d) => d.message)).toEqual([
+      "rackColumns from '@coop/helpers' is given a Knex builder but is not a function of the project that could be read; its effects are left out",
+    ]);
+  });
+
   it('without an entry in the package.json: src/index; a subpath under src/', async () => {
     const subpath = new Map(tree);
     subpath.set('db/migrations/20240303_repairs.js', "const { TableTool } = require('@coop/names/tables');\nexports.up = async (knex) => {\n  await knex.schema.alterTable(TableTool, (t) => {\n    t.integer('repairs');\n  });\n};\n");
@@ -108,9 +154,12 @@ describe('a workspace package of names (oracle: Knex 3 on better-sqlite3, the pa
       ['db/migrations/20240301_tools.js', "const { site } = require('coop-settings');\nexports.up = async (knex) => {\n  await knex.schema.createTable('tool', (t) => {\n    t.increments('id');\n    if (site.region === 'north') t.string('shed');\n    else t.string('aisle');\n  });\n};\n"],
     ]);
     // and a knex instance taken from such a package (`R.knex`) is a builder, as any value not known statically
-    other.set('db/migrations/20240302_loans.js', "const { R } = require('orm-bridge');\nexports.up = async () => {\n  const knex = R.knex;\n  await knex.schema.createTable('loan', (t) => {\n    t.increments('id');\n  });\n};\n");
+    other.set('db/migrations/20240302_loans.js', "const { R, addStamps } = require('orm-bridge');\nexports.up = async () => {\n  const knex = R.knex;\n  await knex.schema.createTable('loan', (t) => {\n    t.increments('id');\n    addStamps(t);\n  });\n};\n");
     const r = await replayTree(other, { 'knex-environment': 'development', 'knex-assume': ['site.region=north'] });
-    expect(r.diagnostics).toEqual([]);
+    // (a function of such a package is not followed: its code is not in the repository)
+    expect(r.diagnostics.map((d) => [d.code, d.message])).toEqual([
+      ['knex/call-not-followed', 'addStamps(...) is given a Knex builder but its code is not in the project; its effects are left out'],
+    ]);
     const tables = tablesOf(r.steps[r.steps.length - 1]!.snapshot);
     expect(tables.map((t) => t.name)).toEqual(['tool', 'loan']);
     expect(tables[0]!.columns.map((c) => c.name)).toEqual(['id', 'shed']);

@@ -88,7 +88,12 @@ export interface Call {
 /** An argument: a value, a callback, or a reference to a function by name. */
 export type Arg = Val | { cb: FnIR } | { fnref: FnRef };
 
-export type FnRef = { local: string } | { imp: string; name: string; path?: string[] };
+/**
+ * A function to call: of this file, or imported. For a package's function, `callee` is the call's
+ * source text: the function is followed when the package is a workspace package, else the call is
+ * one whose code is not in the project.
+ */
+export type FnRef = { local: string } | { imp: string; name: string; path?: string[]; callee?: string };
 
 /** A condition of an `if` or `?:`, decided at replay against the replayed schema where it can be. */
 export type Cond =

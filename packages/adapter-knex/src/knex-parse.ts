@@ -707,9 +707,29 @@ class FileCompiler {
       // a function the parse cannot see; a diagnostic at replay if a builder is handed to it
       const args = e.arguments.map((a) => this.arg(a, scope));
       if (args.some((a) => typeof a === 'object' && a !== null && ('local' in a || 'cb' in a))) {
-        out.push({ k: 'opaque', callee: this.text(callee), args, line });
+        const b = scope.get(rootName);
+        const fn = b?.kind === 'pkg' && !isNodeModule(b.module) ? this.packageFn(b, callee) : null;
+        // a package's function: followed at replay when the package is one of the repository's
+        if (fn) out.push({ k: 'invoke', fn: { ...fn, callee: this.text(callee) }, args, line });
+        else out.push({ k: 'opaque', callee: this.text(callee), args, line });
       }
     }
+  }
+
+  /** The function a call of a package's binding names (`f(...)`, `ns.f(...)`), or null for another callee. */
+  private packageFn(b: Extract<Binding, { kind: 'pkg' }>, callee: Expression): { imp: string; name: string; path?: string[] } | null {
+    const t = this.t;
+    const names: string[] = [];
+    let cur: Expression = this.unwrap(callee);
+    while (t.isPropertyAccessExpression(cur)) {
+      names.unshift(cur.name.text);
+      cur = this.unwrap(cur.expression);
+    }
+    if (!t.isIdentifier(cur)) return null;
+    if ((b.name === '*' || b.name === 'default') && names.length > 0) {
+      return b.name === '*' ? { imp: b.module, name: names[0]!, ...(names.length > 1 ? { path: names.slice(1) } : {}) } : { imp: b.module, name: 'default', path: names };
+    }
+    return { imp: b.module, name: b.name, ...(names.length ? { path: names } : {}) };
   }
 
   /** Emit the effect of a promise-producing expression; what its resolved value stands for. */

@@ -434,6 +434,11 @@ export class Replay {
         }
         if (args.some(isRole)) {
           this.counters.unresolved++;
+          if ('callee' in target && target.callee !== undefined && !frame.file.imports.has(target.imp)) {
+            // a package that is not one of the repository's
+            this.warn('knex/call-not-followed', `${target.callee}(...) is given a Knex builder but its code is not in the project; its effects are left out`, st.line);
+            return null;
+          }
           const name = 'imp' in target ? `${target.name}${target.path ? '.' + target.path.join('.') : ''} from '${target.imp}'` : target.local;
           this.warn('knex/call-not-followed', `${name} is given a Knex builder but is not a function of the project that could be read; its effects are left out`, st.line);
         }
