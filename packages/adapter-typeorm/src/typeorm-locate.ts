@@ -344,16 +344,24 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
   const all = tree.paths() as string[];
   const allList = Array.isArray(all) ? all : [...all];
 
-  const scanOf = async (p: string): Promise<Scan | undefined> => {
+  const scanRead = async (p: string, blob: string): Promise<Scan> => {
+    const text = await tree.read(p);
+    const s = text === undefined ? { entity: false, typeorm: false, config: false, imports: [], reexports: [] } : scanText(text, decorators);
+    scans.set(blob, s);
+    return s;
+  };
+  // the scan of a blob seen before is handed back as it is, not through a promise: a full locate
+  // asks for every source file's scan, and an `await` per file cost a tick per file
+  const scanOf = (p: string): Scan | undefined | Promise<Scan | undefined> => {
     const blob = tree.blob(p);
     if (!blob) return undefined;
-    let s = scans.get(blob);
-    if (!s) {
-      const text = await tree.read(p);
-      s = text === undefined ? { entity: false, typeorm: false, config: false, imports: [], reexports: [] } : scanText(text, decorators);
-      scans.set(blob, s);
-    }
-    return s;
+    return scans.get(blob) ?? scanRead(p, blob);
+  };
+  const scanNow = async (p: string): Promise<Scan | undefined> => scanOf(p);
+  /** A flag of a file's scan: at once for a blob scanned before, else once its text is read. */
+  const flagOf = (p: string, key: 'entity' | 'config'): boolean | Promise<boolean> => {
+    const s = scanOf(p);
+    return s instanceof Promise ? s.then((x) => x?.[key] ?? false) : (s?.[key] ?? false);
   };
 
   // tsconfig views, per tsconfig path, for this commit
@@ -420,7 +428,7 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
   if (req.paths) {
     for (const p of req.paths) {
       if (!sourceOf(p)) continue;
-      const scan = await scanOf(p);
+      const scan = await scanNow(p);
       if (scan?.entity) roots.push(p);
       // a data source among the selected files gives the database type and the naming, and which
       // of the selected entities TypeORM registers
@@ -435,7 +443,11 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
     const candidates: string[] = [];
     for (const p of allList) {
       if (is(p, K_ORMCONFIG)) candidates.push(p);
-      else if (sourceOf(p) && (await scanOf(p))?.config) candidates.push(p);
+      else if (sourceOf(p)) {
+        let c = flagOf(p, 'config');
+        if (c instanceof Promise) c = await c;
+        if (c) candidates.push(p);
+      }
     }
     for (const p of candidates) {
       const facts = await factsOf(tree, p);
@@ -465,7 +477,9 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
       const match = globMatcher(selections.flatMap((s) => s.globs));
       for (const p of allList) {
         if (!sourceOf(p) || !match(p)) continue;
-        if ((await scanOf(p))?.entity) roots.push(p);
+        let e = flagOf(p, 'entity');
+        if (e instanceof Promise) e = await e;
+        if (e) roots.push(p);
       }
     }
     if (open || roots.length === 0) {
@@ -473,12 +487,16 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
       for (const p of allList) {
         // (a TypeScript source that is not a declaration file, outside test code)
         if ((kindOf(p).bits & (K_SOURCE | K_TS | K_TEST)) !== (K_SOURCE | K_TS)) continue;
-        if ((await scanOf(p))?.entity) roots.push(p);
+        let e = flagOf(p, 'entity');
+        if (e instanceof Promise) e = await e;
+        if (e) roots.push(p);
       }
       if (roots.length === 0) {
         for (const p of allList) {
           if ((kindOf(p).bits & (K_SOURCE | K_TS | K_TEST)) !== K_SOURCE) continue;
-          if ((await scanOf(p))?.entity) roots.push(p);
+          let e = flagOf(p, 'entity');
+          if (e instanceof Promise) e = await e;
+          if (e) roots.push(p);
         }
       }
     }
@@ -526,7 +544,7 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
   }
   while (queue.length > 0) {
     const { path, depth } = queue.shift()!;
-    const scan = await scanOf(path);
+    const scan = await scanNow(path);
     if (!scan) continue;
     const aware = scan.typeorm || scan.entity;
     const next = aware ? 1 : depth + 1;
