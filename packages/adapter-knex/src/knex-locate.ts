@@ -11,7 +11,8 @@ const KNEXFILE = /^knexfile\.(js|ts|cjs|mjs|cts|mts)$/;
 /**
  * Paths that can matter to locating or replaying Knex migrations: every JavaScript and
  * TypeScript file (a knexfile can name any directory, a migration can import constants from
- * anywhere in the project). One glob for the six extensions (.js .cjs .mjs .ts .cts .mts):
+ * anywhere in the project), and the package.json files that make a directory a workspace
+ * package a migration may import. One glob for the six extensions (.js .cjs .mjs .ts .cts .mts):
  * git's log pass matches every watched glob against every changed path, so fewer is faster.
  */
 export const KNEX_WATCH = ['**/*.*[jt]s', '**/package.json'];
