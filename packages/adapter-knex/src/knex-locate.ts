@@ -1,7 +1,7 @@
 import { posix } from 'node:path';
 import { BlobMemo, sortedIndex, sortedUnique, type AdapterOptionValues, type Diagnostic, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
 import type { Cond, PackageInfo, Val } from './knex-facts.js';
-import { isArr, isObj, isProjectPackage, isUndeclaredName, member, packageInfo, parseKnexSource, runtimeImportsOf, runtimePackagesOf } from './knex-parse.js';
+import { isArr, isObj, isProjectPackage, isRelative, isUndeclaredName, member, packageInfo, parseKnexSource, runtimeModulesOf } from './knex-parse.js';
 import { knexOptions, type AssumedValue, type KnexOptions } from './knex-config.js';
 
 const SOURCE_EXTENSIONS = ['.js', '.cjs', '.mjs', '.ts', '.cts', '.mts'];
@@ -295,15 +295,34 @@ export function scanImports(text: string): string[] {
 }
 
 // memos by blob id: the same text always gives the same answer
-const importMemo = new BlobMemo<string[]>();
+const moduleMemo = new BlobMemo<{ relative: string[]; packages: string[] }>();
 const configMemo = new BlobMemo<Val | null>();
 const migrationMemo = new BlobMemo<boolean>();
+const NO_MODULES = { relative: [], packages: [] };
 
-async function importsOf(tree: TreeView, path: string): Promise<string[]> {
-  // the quick scan first; a file it finds relative imports in is parsed, so that imports only in
-  // comments, and those TypeScript elides (used only as types), are not followed
-  return (await importMemo.of(tree, path, (text) => (text === undefined || scanImports(text).length === 0 ? [] : runtimeImportsOf(text)))) ?? [];
+/** Whether a text names, in a quick scan, a bare specifier that could be a package of the project. */
+function mayLoadPackage(text: string): boolean {
+  const re = /(?:\bfrom\s*|\brequire\s*\(\s*|\bimport\s*\(\s*|\bimport\s+)(['"])([^'"\n.][^'"\n]*)\1/g;
+  for (let m = re.exec(text); m; m = re.exec(text)) if (isProjectPackage(m[2]!)) return true;
+  return false;
 }
+
+/**
+ * The modules a file loads when it runs: its relative specifiers, and its bare ones that could
+ * name a package of the project. Quick scans first; a file they find either in is parsed, once,
+ * so that imports only in comments, and those TypeScript elides (used only as types), are not
+ * followed.
+ */
+async function modulesOf(tree: TreeView, path: string): Promise<{ relative: string[]; packages: string[] }> {
+  const got = await moduleMemo.of(tree, path, (text) => {
+    if (text === undefined || (scanImports(text).length === 0 && !mayLoadPackage(text))) return NO_MODULES;
+    const modules = runtimeModulesOf(text);
+    return { relative: modules.filter(isRelative), packages: modules.filter(isProjectPackage) };
+  });
+  return got ?? NO_MODULES;
+}
+
+const importsOf = async (tree: TreeView, path: string): Promise<string[]> => (await modulesOf(tree, path)).relative;
 
 async function knexfileConfig(tree: TreeView, path: string): Promise<Val | null> {
   const config = await configMemo.of(tree, path, (text) => {
@@ -336,7 +355,6 @@ export interface WorkspacePackage {
 }
 
 const packageMemo = new BlobMemo<PackageInfo | null>();
-const packageImportMemo = new BlobMemo<string[]>();
 
 const isPackageJson = (p: string): boolean => (p === 'package.json' || p.endsWith('/package.json')) && !p.includes('node_modules/');
 
@@ -388,18 +406,8 @@ export function resolvePackageSpec(spec: string, packages: ReadonlyMap<string, {
   return rel('src/index') ?? rel('index');
 }
 
-/** Bare specifiers a file loads when it runs that could name a package of the project (a quick scan first, then a parse). */
-async function packageImportsOf(tree: TreeView, path: string): Promise<string[]> {
-  return (
-    (await packageImportMemo.of(tree, path, (text) => {
-      if (text === undefined) return [];
-      const re = /(?:\bfrom\s*|\brequire\s*\(\s*|\bimport\s*\(\s*|\bimport\s+)(['"])([^'"\n.][^'"\n]*)\1/g;
-      let any = false;
-      for (let m = re.exec(text); m && !any; m = re.exec(text)) any = isProjectPackage(m[2]!);
-      return any ? runtimePackagesOf(text) : [];
-    })) ?? []
-  );
-}
+/** Bare specifiers a file loads when it runs that could name a package of the project (see `modulesOf`). */
+const packageImportsOf = async (tree: TreeView, path: string): Promise<string[]> => (await modulesOf(tree, path)).packages;
 
 /**
  * The files the given ones import from the project, transitively (at most `limit` files): by

@@ -53,7 +53,6 @@ const PROMISE_ALL = new Set(['all', 'allSettled', 'race', 'any']);
 const PROMISE_SERIES = new Set(['each', 'mapSeries', 'map', 'mapSync']);
 const CONFIG_KEYS = new Set(['client', 'dialect', 'connection', 'migrations', 'useNullAsDefault', 'pool', 'searchPath']);
 
-/** Is a relative module specifier (a file of the project)? */
 /**
  * Whether an `{ expr }` value's text is a name the file does not declare (the parse keeps such a
  * name as its text; `function` is its text of a method, not a name).
@@ -74,6 +73,7 @@ export function isProjectPackage(spec: string): boolean {
   return !isRelative(spec) && !spec.startsWith('/') && !isNodeModule(spec) && spec !== 'knex' && !spec.startsWith('knex/');
 }
 
+/** Is a relative module specifier (a file of the project)? */
 export function isRelative(spec: string): boolean {
   return spec.startsWith('./') || spec.startsWith('../') || spec === '.' || spec === '..';
 }
@@ -676,19 +676,8 @@ class FileCompiler {
     if (kind === 'imp' && rootName) {
       // a helper function of another project file: f(...), ns.f(...), obj.f(...)
       const b = scope.get(rootName) as Extract<Binding, { kind: 'imp' }>;
-      const path = [...(b.path ?? [])];
-      let cur: Expression = callee;
-      const names: string[] = [];
-      while (t.isPropertyAccessExpression(cur)) {
-        names.unshift(cur.name.text);
-        cur = this.unwrap(cur.expression);
-      }
-      if (!t.isIdentifier(cur)) return;
-      path.push(...names);
-      const fn: FnRef = b.name === '*' && path.length > 0
-        ? { imp: b.imp, name: path[0]!, ...(path.length > 1 ? { path: path.slice(1) } : {}) }
-        : { imp: b.imp, name: b.name, ...(path.length ? { path } : {}) };
-      out.push({ k: 'invoke', fn, args: e.arguments.map((a) => this.arg(a, scope)), line });
+      const fn = this.importedFn(b.imp, b.name, b.path ?? [], callee);
+      if (fn) out.push({ k: 'invoke', fn, args: e.arguments.map((a) => this.arg(a, scope)), line });
       return;
     }
     if (kind === 'builder') {
@@ -708,7 +697,7 @@ class FileCompiler {
       const args = e.arguments.map((a) => this.arg(a, scope));
       if (args.some((a) => typeof a === 'object' && a !== null && ('local' in a || 'cb' in a))) {
         const b = scope.get(rootName);
-        const fn = b?.kind === 'pkg' && !isNodeModule(b.module) ? this.packageFn(b, callee) : null;
+        const fn = b?.kind === 'pkg' && !isNodeModule(b.module) ? this.importedFn(b.module, b.name, [], callee) : null;
         // a package's function: followed at replay when the package is one of the repository's
         if (fn) out.push({ k: 'invoke', fn: { ...fn, callee: this.text(callee) }, args, line });
         else out.push({ k: 'opaque', callee: this.text(callee), args, line });
@@ -716,8 +705,12 @@ class FileCompiler {
     }
   }
 
-  /** The function a call of a package's binding names (`f(...)`, `ns.f(...)`), or null for another callee. */
-  private packageFn(b: Extract<Binding, { kind: 'pkg' }>, callee: Expression): { imp: string; name: string; path?: string[] } | null {
+  /**
+   * The function a call of an imported binding names (`f(...)`, `ns.f(...)`, `obj.f(...)`):
+   * `spec` and `name` as imported, `path` the members the binding already stands for; null for a
+   * callee that is not a chain of members on a name.
+   */
+  private importedFn(spec: string, name: string, path: readonly string[], callee: Expression): { imp: string; name: string; path?: string[] } | null {
     const t = this.t;
     const names: string[] = [];
     let cur: Expression = this.unwrap(callee);
@@ -726,10 +719,10 @@ class FileCompiler {
       cur = this.unwrap(cur.expression);
     }
     if (!t.isIdentifier(cur)) return null;
-    if ((b.name === '*' || b.name === 'default') && names.length > 0) {
-      return b.name === '*' ? { imp: b.module, name: names[0]!, ...(names.length > 1 ? { path: names.slice(1) } : {}) } : { imp: b.module, name: 'default', path: names };
-    }
-    return { imp: b.module, name: b.name, ...(names.length ? { path: names } : {}) };
+    const all = [...path, ...names];
+    return name === '*' && all.length > 0
+      ? { imp: spec, name: all[0]!, ...(all.length > 1 ? { path: all.slice(1) } : {}) }
+      : { imp: spec, name, ...(all.length ? { path: all } : {}) };
   }
 
   /** Emit the effect of a promise-producing expression; what its resolved value stands for. */
@@ -1453,15 +1446,14 @@ export function runtimeModules(sf: SourceFileNode): string[] {
 
 /** The relative modules a source text loads when it runs (see `runtimeImports`). */
 export function runtimeImportsOf(text: string): string[] {
-  const t = ts();
-  // (memoised by blob: copies, not slices that keep the text alive)
-  return detach(runtimeImports(t.createSourceFile('file.ts', text, t.ScriptTarget.Latest, false, t.ScriptKind.TS)));
+  return runtimeModulesOf(text).filter(isRelative);
 }
 
-/** The bare specifiers of `isProjectPackage` a source text loads when it runs (see `runtimeModules`). */
-export function runtimePackagesOf(text: string): string[] {
+/** The modules a source text loads when it runs (see `runtimeModules`). */
+export function runtimeModulesOf(text: string): string[] {
   const t = ts();
-  return detach(runtimeModules(t.createSourceFile('file.ts', text, t.ScriptTarget.Latest, false, t.ScriptKind.TS)).filter(isProjectPackage));
+  // (memoised by blob: copies, not slices that keep the text alive)
+  return detach(runtimeModules(t.createSourceFile('file.ts', text, t.ScriptTarget.Latest, false, t.ScriptKind.TS)));
 }
 
 /** `parseFile` of the adapter: the facts of one file, by its text. */
