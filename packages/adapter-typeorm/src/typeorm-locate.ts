@@ -85,41 +85,38 @@ const K_TEST = 4;
 const K_ORMCONFIG = 8;
 const K_TSCONFIG = 16;
 const K_PACKAGE = 32;
-const pathKinds = new Map<string, { bits: number; dir: string }>();
+const pathKinds = new Map<string, number>();
 
 /**
- * The kind of a path (`K_*` bits) and its directory, worked out once per path for the run: a
- * full locate tests every path of the tree against several patterns, and consecutive commits
- * share nearly all of their paths (on a real monorepo's history of 2,256 full locates the
- * patterns alone took seconds).
+ * The kind of a path (`K_*` bits), worked out once per path for the run: a full locate tests
+ * every path of the tree against several patterns, and consecutive commits share nearly all of
+ * their paths (on a real monorepo's history of 2,256 full locates the patterns alone took seconds).
  */
-function kindOf(p: string): { bits: number; dir: string } {
-  let k = pathKinds.get(p);
-  if (!k) {
-    let bits = 0;
+function kindOf(p: string): number {
+  let bits = pathKinds.get(p);
+  if (bits === undefined) {
+    bits = 0;
     if (SOURCE_FILE.test(p) && !isDeclarationFile(p)) bits |= K_SOURCE;
     if (TS_SOURCE.test(p)) bits |= K_TS;
     if (isTestPath(p)) bits |= K_TEST;
     if (isOrmconfigPath(p)) bits |= K_ORMCONFIG;
     if (isTsconfigPath(p)) bits |= K_TSCONFIG;
     if (isPackageJson(p)) bits |= K_PACKAGE;
-    const d = posix.dirname(p);
-    k = { bits, dir: d };
-    pathKinds.set(p, k);
+    pathKinds.set(p, bits);
   }
-  return k;
+  return bits;
 }
-const is = (p: string, bit: number): boolean => (kindOf(p).bits & bit) !== 0;
+const is = (p: string, bit: number): boolean => (kindOf(p) & bit) !== 0;
 
 const parents = new Map<string, string>();
-/** `posix.dirname` of a directory, once per directory for the run. */
-function parentDir(d: string): string {
-  let p = parents.get(d);
-  if (p === undefined) {
-    p = posix.dirname(d);
-    parents.set(d, p);
+/** `posix.dirname` of a path (a file's or a directory's), once per path for the run. */
+function parentDir(p: string): string {
+  let d = parents.get(p);
+  if (d === undefined) {
+    d = posix.dirname(p);
+    parents.set(p, d);
   }
-  return p;
+  return d;
 }
 
 
@@ -387,7 +384,7 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
   for (const p of allList) if (is(p, K_TSCONFIG)) tsFacts.set(p, await tsconfigFactOf(tree, p));
   const dirs = new Set<string>();
   for (const p of allList) {
-    let d = kindOf(p).dir;
+    let d = parentDir(p);
     while (d !== '.' && !dirs.has(d)) {
       dirs.add(d);
       d = parentDir(d);
@@ -486,14 +483,14 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
       roots = [];
       for (const p of allList) {
         // (a TypeScript source that is not a declaration file, outside test code)
-        if ((kindOf(p).bits & (K_SOURCE | K_TS | K_TEST)) !== (K_SOURCE | K_TS)) continue;
+        if ((kindOf(p) & (K_SOURCE | K_TS | K_TEST)) !== (K_SOURCE | K_TS)) continue;
         let e = flagOf(p, 'entity');
         if (e instanceof Promise) e = await e;
         if (e) roots.push(p);
       }
       if (roots.length === 0) {
         for (const p of allList) {
-          if ((kindOf(p).bits & (K_SOURCE | K_TS | K_TEST)) !== K_SOURCE) continue;
+          if ((kindOf(p) & (K_SOURCE | K_TS | K_TEST)) !== K_SOURCE) continue;
           let e = flagOf(p, 'entity');
           if (e instanceof Promise) e = await e;
           if (e) roots.push(p);
