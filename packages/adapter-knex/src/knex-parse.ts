@@ -1386,15 +1386,11 @@ export function parseKnexSource(text: string): FileFacts<KnexFacts> {
 }
 
 /**
- * The relative modules a file loads when it runs, in order of appearance: imports, re-exports,
- * `require()` and `import()` calls, but not what TypeScript elides (`import type`, and imports
- * whose bindings serve only as types), nor what is only in comments.
+ * The modules a file loads when it runs, in order of appearance: relative specifiers and those of
+ * `isProjectPackage`, from imports, re-exports, `require()` and `import()` calls, but not what
+ * TypeScript elides (`import type`, and imports whose bindings serve only as types), nor what is
+ * only in comments.
  */
-export function runtimeImports(sf: SourceFileNode): string[] {
-  return runtimeModules(sf).filter(isRelative);
-}
-
-/** The modules a file loads when it runs (see `runtimeImports`): relative specifiers and those of `isProjectPackage`. */
 export function runtimeModules(sf: SourceFileNode): string[] {
   const t = ts();
   const out: string[] = [];
@@ -1444,7 +1440,7 @@ export function runtimeModules(sf: SourceFileNode): string[] {
   return out.filter((s) => s !== '');
 }
 
-/** The relative modules a source text loads when it runs (see `runtimeImports`). */
+/** The relative modules a source text loads when it runs (see `runtimeModules`). */
 export function runtimeImportsOf(text: string): string[] {
   return runtimeModulesOf(text).filter(isRelative);
 }
