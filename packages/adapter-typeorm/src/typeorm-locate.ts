@@ -469,33 +469,27 @@ async function locateFull(tree: TreeView, req: LocateRequest): Promise<Located> 
         selections.push(sel);
       }
     }
+    /** The paths of the tree that `keep` accepts and whose scan finds an entity, in tree order. */
+    const entitiesAmong = async (keep: (p: string) => boolean): Promise<string[]> => {
+      const out: string[] = [];
+      for (const p of allList) {
+        if (!keep(p)) continue;
+        let e = flagOf(p, 'entity');
+        if (e instanceof Promise) e = await e;
+        if (e) out.push(p);
+      }
+      return out;
+    };
     const open = selections.length === 0 || selections.some((s) => s.open);
     if (!open) {
       const match = globMatcher(selections.flatMap((s) => s.globs));
-      for (const p of allList) {
-        if (!sourceOf(p) || !match(p)) continue;
-        let e = flagOf(p, 'entity');
-        if (e instanceof Promise) e = await e;
-        if (e) roots.push(p);
-      }
+      roots = await entitiesAmong((p) => sourceOf(p) && match(p));
     }
     if (open || roots.length === 0) {
-      roots = [];
-      for (const p of allList) {
-        // (a TypeScript source that is not a declaration file, outside test code)
-        if ((kindOf(p) & (K_SOURCE | K_TS | K_TEST)) !== (K_SOURCE | K_TS)) continue;
-        let e = flagOf(p, 'entity');
-        if (e instanceof Promise) e = await e;
-        if (e) roots.push(p);
-      }
-      if (roots.length === 0) {
-        for (const p of allList) {
-          if ((kindOf(p) & (K_SOURCE | K_TS | K_TEST)) !== K_SOURCE) continue;
-          let e = flagOf(p, 'entity');
-          if (e instanceof Promise) e = await e;
-          if (e) roots.push(p);
-        }
-      }
+      // TypeScript sources that are not declaration files, outside test code; failing those, the other sources
+      const kinds = K_SOURCE | K_TS | K_TEST;
+      roots = await entitiesAmong((p) => (kindOf(p) & kinds) === (K_SOURCE | K_TS));
+      if (roots.length === 0) roots = await entitiesAmong((p) => (kindOf(p) & kinds) === K_SOURCE);
     }
   }
   if (roots.length === 0) return { files: [], searched: SEARCHED };
