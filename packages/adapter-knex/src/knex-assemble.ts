@@ -7,6 +7,7 @@ import type {
   Diagnostic,
   SnapshotInput,
 } from '@schema-strata/core/extract';
+import { packageJsonDir } from '@schema-strata/core/extract';
 import type { KnexFacts, PackageInfo } from './knex-facts.js';
 import { knexOptions, type KnexOptions } from './knex-config.js';
 import { isKnexfile, knexfileSettings, migrationIndices, resolveImport, resolvePackageSpec, splitPackageSpec } from './knex-locate.js';
@@ -88,7 +89,7 @@ function workspaceOf(input: AssembleInput<KnexFacts>): Workspace {
     const info = f.facts?.package;
     if (!info) continue;
     out ??= new Map();
-    if (!out.has(info.name)) out.set(info.name, { dir: f.path === 'package.json' ? '' : f.path.slice(0, -'/package.json'.length), info });
+    if (!out.has(info.name)) out.set(info.name, { dir: packageJsonDir(f.path), info });
   }
   return out ?? NO_PACKAGES;
 }

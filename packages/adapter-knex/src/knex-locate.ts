@@ -1,5 +1,5 @@
 import { posix } from 'node:path';
-import { BlobMemo, sortedIndex, sortedUnique, type AdapterOptionValues, type Diagnostic, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
+import { BlobMemo, isOwnPackageJson, packageJsonDir, sortedIndex, sortedUnique, type AdapterOptionValues, type Diagnostic, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
 import type { Cond, PackageInfo, Val } from './knex-facts.js';
 import { isArr, isObj, isProjectPackage, isRelative, isUndeclaredName, member, packageInfo, parseKnexSource, runtimeModulesOf } from './knex-parse.js';
 import { knexOptions, type AssumedValue, type KnexOptions } from './knex-config.js';
@@ -356,14 +356,13 @@ export interface WorkspacePackage {
 
 const packageMemo = new BlobMemo<PackageInfo | null>();
 
-const isPackageJson = (p: string): boolean => (p === 'package.json' || p.endsWith('/package.json')) && !p.includes('node_modules/');
 
 /** The repository's own packages at this commit (every package.json with a name, node_modules aside), by name; the first by path wins. */
 async function workspacePackages(tree: TreeView): Promise<Map<string, WorkspacePackage>> {
   const out = new Map<string, WorkspacePackage>();
-  for (const p of [...tree.paths()].filter(isPackageJson).sort()) {
+  for (const p of [...tree.paths()].filter(isOwnPackageJson).sort()) {
     const info = await packageMemo.of(tree, p, (text) => (text === undefined ? null : packageInfo(text)));
-    if (info && !out.has(info.name)) out.set(info.name, { file: p, dir: p === 'package.json' ? '' : p.slice(0, -'/package.json'.length), info });
+    if (info && !out.has(info.name)) out.set(info.name, { file: p, dir: packageJsonDir(p), info });
   }
   return out;
 }
@@ -522,7 +521,7 @@ async function carryForward(tree: TreeView, last: Carried, changed: readonly str
   });
   let files = last.files;
   for (const p of changed) {
-    if (isKnexfile(p) || last.initNamed.includes(p) || isPackageJson(p)) return null;
+    if (isKnexfile(p) || last.initNamed.includes(p) || isOwnPackageJson(p)) return null;
     const parent = posix.dirname(p);
     const dir = parent === '.' ? '' : parent;
     if (!last.directories.includes(dir)) continue;

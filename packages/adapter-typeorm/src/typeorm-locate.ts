@@ -1,5 +1,5 @@
 import { posix } from 'node:path';
-import { BlobMemo, detach, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
+import { BlobMemo, detach, isOwnPackageJson, type Located, type LocateRequest, type TreeView } from '@schema-strata/core/extract';
 import { ENTITY_DECORATORS, readSettings, TYPEORM_DECORATORS } from './typeorm-config.js';
 import {
   extendsTarget, globMatcher, isDeclarationFile, isTestPath, ModuleResolver, nearestTsconfig, packagesByName, parsePackageJson, ResolutionMemo, sourceGlobs, SOURCE_FILE, tsconfigView,
@@ -76,7 +76,6 @@ const factsMemo = new BlobMemo<TypeormFileFacts | null>();
 const tsconfigMemo = new BlobMemo<TsconfigFact | null>();
 const packageMemo = new BlobMemo<PackageFact | null>();
 
-const isPackageJson = (p: string): boolean => (p === 'package.json' || p.endsWith('/package.json')) && !p.includes('node_modules/');
 
 /** What a path is, by its name alone (see `kindOf`). */
 const K_SOURCE = 1; // a source file, not a declaration file
@@ -101,7 +100,7 @@ function kindOf(p: string): number {
     if (isTestPath(p)) bits |= K_TEST;
     if (isOrmconfigPath(p)) bits |= K_ORMCONFIG;
     if (isTsconfigPath(p)) bits |= K_TSCONFIG;
-    if (isPackageJson(p)) bits |= K_PACKAGE;
+    if (isOwnPackageJson(p)) bits |= K_PACKAGE;
     pathKinds.set(p, bits);
   }
   return bits;

@@ -1,5 +1,6 @@
 import { posix } from 'node:path';
 import picomatch from 'picomatch';
+import { packageJsonDir } from '@schema-strata/core/extract';
 import type { TsconfigFact } from './typeorm-parse.js';
 
 /**
@@ -146,7 +147,7 @@ export interface PackageFact {
 
 /** The workspace package of a package.json at `file` that says `fact`. */
 export function workspacePackage(file: string, fact: PackageFact): WorkspacePackage {
-  return { ...fact, file, dir: file === 'package.json' ? '' : file.slice(0, -'/package.json'.length) };
+  return { ...fact, file, dir: packageJsonDir(file) };
 }
 
 /** A package of the repository (a workspace package): where its package.json is and what it says. */

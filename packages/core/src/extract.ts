@@ -12,6 +12,7 @@ export type * from './adapter/api.js';
 export { BlobMemo } from './adapter/blob-memo.js';
 export { readAssumptions, type AssumedValue } from './adapter/assumptions.js';
 export { detach } from './adapter/detach.js';
+export { isOwnPackageJson, packageJsonDir } from './adapter/package-json.js';
 export { sortedIndex, sortedUnique } from './util/sorted.js';
 export { loadAdapter, installedAdapters, registerAdapterBase, KNOWN_ADAPTERS, type LoadedAdapter } from './adapter/loader.js';
 export { extractHistory, outputOptions, DEFAULT_MAX_FILE_BYTES, type History, type VersionRecord, type VersionStatus, type ExtractRequest, type FileRef } from './history/engine.js';
